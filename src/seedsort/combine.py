@@ -1,0 +1,174 @@
+"""Graph + seed classifier: the two views of the seeds, combined.
+
+Label spreading is strong where documents form dense neighbourhoods (long texts, many
+near-paraphrases); a classifier trained on the seeds is strong where documents share few
+words with each other but the seed vocabulary separates the categories (short queries).
+seedsort averages their probability rows:
+
+    P = w * P_graph + (1 - w) * P_classifier
+
+with w = 0.5 by default. On BANKING77 at 10 seeds per category this average beats either
+view alone (measured; see README "Accuracy"). The classifier is multinomial logistic
+regression (scikit-learn, lbfgs) on the same L2-normalised n-gram vectors; it costs one fit
+on the seeds and one sparse product over the collection.
+
+:func:`cross_check` re-runs both views with each fold of the seeds held out, giving every
+seed a prediction made without it: the basis for flagging possible mislabelled seeds and
+for an estimate of the run's accuracy.
+"""
+
+from __future__ import annotations
+
+import warnings
+from dataclasses import dataclass
+
+import numpy as np
+import scipy.sparse as sp
+from sklearn.exceptions import ConvergenceWarning
+from sklearn.linear_model import LogisticRegression
+
+from .spreading import (
+    class_mass_normalise,
+    seed_matrix,
+    spread_labels,
+    to_probabilities,
+)
+
+
+@dataclass(frozen=True, slots=True)
+class ModelSettings:
+    """Settings of the spreading + classifier model (the vectors and graph are given)."""
+
+    alpha: float = 0.99
+    graph_weight: float = 0.5
+    classifier_strength: float = 10.0
+    class_mass_normalisation: bool = False
+    solver: str = "cg"
+    tol: float = 1e-6
+    max_iter: int = 1000
+
+
+@dataclass(frozen=True, slots=True)
+class Prediction:
+    """Probabilities of every category for every document.
+
+    Attributes
+    ----------
+    probabilities:
+        (n, c) float64, rows sum to 1 (the blend).
+    graph_mass:
+        (n,) spread label mass before normalising; ~0 means no seed reaches the document.
+    spread_iterations:
+        Sparse products the spreading solver used.
+    """
+
+    probabilities: np.ndarray
+    graph_mass: np.ndarray
+    spread_iterations: int
+
+
+def classifier_probabilities(
+    vectors: sp.csr_matrix | np.ndarray,
+    seed_rows: np.ndarray,
+    seed_classes: np.ndarray,
+    n_classes: int,
+    strength: float,
+) -> np.ndarray:
+    """Logistic regression fitted on the seed rows, probabilities for all rows.
+
+    Categories absent from ``seed_classes`` (possible in cross-validation folds) get
+    probability 0. Returns (n, n_classes) float64.
+    """
+    present = np.unique(seed_classes)
+    out = np.zeros((vectors.shape[0], n_classes), dtype=np.float64)
+    if present.size == 1:
+        out[:, present[0]] = 1.0
+        return out
+    train = vectors[seed_rows]
+    # Only features some seed has can get a non-zero weight under the L2 penalty, so fitting
+    # on those columns gives the same model, about 3x faster on BANKING77 (measured).
+    if sp.issparse(train):
+        used = np.unique(sp.csr_matrix(train).indices)
+        train, vectors = train[:, used], sp.csr_matrix(vectors)[:, used]
+    model = LogisticRegression(C=strength, max_iter=2000)
+    with warnings.catch_warnings():
+        # lbfgs on a handful of seeds can stop a little short; the probabilities are fine.
+        warnings.simplefilter("ignore", ConvergenceWarning)
+        model.fit(train, seed_classes)
+    out[:, model.classes_] = model.predict_proba(vectors)
+    return out
+
+
+def predict(
+    vectors: sp.csr_matrix | np.ndarray,
+    normalised_graph: sp.csr_matrix,
+    seed_rows: np.ndarray,
+    seed_classes: np.ndarray,
+    n_classes: int,
+    settings: ModelSettings,
+) -> Prediction:
+    """Spread the seeds over the graph, fit the seed classifier, blend the two."""
+    n = vectors.shape[0]
+    y = seed_matrix(seed_rows, seed_classes, n, n_classes)
+    spread = spread_labels(
+        normalised_graph, y, alpha=settings.alpha, tol=settings.tol,
+        max_iter=settings.max_iter, solver=settings.solver,
+    )
+    scores = np.clip(spread.scores, 0.0, None)
+    if settings.class_mass_normalisation:
+        share = np.bincount(seed_classes, minlength=n_classes) / max(1, len(seed_classes))
+        scores = class_mass_normalise(scores, share)
+    graph_probs, mass = to_probabilities(scores)
+    clf_probs = classifier_probabilities(vectors, seed_rows, seed_classes, n_classes, settings.classifier_strength)
+    w = settings.graph_weight
+    # Where the graph has no mass its row is uniform and uninformative: use the classifier alone.
+    w_rows = np.where(mass > 0, w, 0.0)[:, None]
+    probs = w_rows * graph_probs + (1.0 - w_rows) * clf_probs
+    probs /= probs.sum(axis=1, keepdims=True)
+    return Prediction(probabilities=probs, graph_mass=mass, spread_iterations=spread.iterations)
+
+
+def fold_of_each_seed(seed_classes: np.ndarray, order_key: np.ndarray, folds: int) -> np.ndarray:
+    """Stratified fold numbers: within each category, seeds sorted by ``order_key`` deal round-robin.
+
+    Sorting by a content-derived key (not by position) keeps the folds, and so every
+    cross-checked result, independent of the order of the documents.
+    """
+    fold = np.zeros(seed_classes.size, dtype=np.int64)
+    for c in np.unique(seed_classes):
+        members = np.flatnonzero(seed_classes == c)
+        members = members[np.argsort(order_key[members], kind="stable")]
+        fold[members] = np.arange(members.size) % folds
+    return fold
+
+
+def cross_check(
+    vectors: sp.csr_matrix | np.ndarray,
+    normalised_graph: sp.csr_matrix,
+    seed_rows: np.ndarray,
+    seed_classes: np.ndarray,
+    n_classes: int,
+    settings: ModelSettings,
+    order_key: np.ndarray,
+    folds: int = 5,
+) -> np.ndarray:
+    """Held-out prediction for each seed.
+
+    Returns
+    -------
+    float64 array (len(seed_rows), n_classes): each seed's probabilities from a model that
+    did not see it; a row of NaN where the seed's category had no other seed (nothing to
+    learn from).
+    """
+    fold = fold_of_each_seed(seed_classes, order_key, folds)
+    predicted = np.full((seed_rows.size, n_classes), np.nan)
+    for f in range(min(folds, int(fold.max()) + 1 if fold.size else 0)):
+        held = fold == f
+        train = ~held
+        if np.unique(seed_classes[train]).size < 2:
+            continue
+        pred = predict(vectors, normalised_graph, seed_rows[train], seed_classes[train], n_classes, settings)
+        learnable = np.isin(seed_classes[held], seed_classes[train])
+        rows = np.flatnonzero(held)[learnable]
+        predicted[rows] = pred.probabilities[seed_rows[rows]]
+    return predicted

@@ -1,0 +1,247 @@
+"""The whole run: documents + seeds -> vectors -> graph -> spread + classifier -> results.
+
+Each stage is a separate function over plain data (texts, a CSR matrix, neighbour arrays,
+probability arrays), so a later stage can be cached, chunked or swapped without touching
+the others. Costs for n documents, k neighbours, c categories, s seeds: vectors O(text),
+exact graph O(n^2) sparse dot products in blocks, spreading O(n*k*c) per sparse product,
+classifier O(s) to fit + O(nnz) to apply, cross-check five more spreads and fits.
+"""
+
+from __future__ import annotations
+
+import os
+import time
+from collections.abc import Sequence
+from dataclasses import asdict, dataclass, field
+from pathlib import Path
+
+import numpy as np
+
+from ._progress import ProgressCallback, no_progress
+from .combine import ModelSettings, cross_check, predict
+from .errors import InputError
+from .graph import knn_cosine, nearest_rows, seed_reach, symmetric_affinity
+from .results import NEAREST_SEEDS, SortResult
+from .seeds import (
+    SeedSet,
+    column_labels,
+    read_examples_folder,
+    read_labels_file,
+    resolve_seeds,
+)
+from .sources import Collection, Document, TableColumns, read_collection
+from .spreading import normalised_affinity
+from .vectors import VectorSettings, vectorise
+
+SNIPPET_CHARS = 200
+MISLABEL_RATIO = 2.0
+
+
+@dataclass(frozen=True, slots=True)
+class SortSettings:
+    """All settings of a run, with measured defaults (see README "Accuracy").
+
+    Parameters
+    ----------
+    vectors:
+        How documents become vectors.
+    neighbours:
+        k of the k-nearest-neighbour graph.
+    model:
+        Spreading and classifier settings.
+    cross_check_folds:
+        Folds of the held-out check of the seeds (0 turns it off).
+    min_relative_mass:
+        A document whose spread mass is below this fraction of the median mass of the
+        reached documents counts as not reached.
+    """
+
+    vectors: VectorSettings = field(default_factory=VectorSettings)
+    neighbours: int = 10
+    model: ModelSettings = field(default_factory=ModelSettings)
+    cross_check_folds: int = 5
+    min_relative_mass: float = 1e-4
+
+
+def _snippet(text: str) -> str:
+    flat = " ".join(text.split())
+    return flat if len(flat) <= SNIPPET_CHARS else flat[: SNIPPET_CHARS - 1] + "…"
+
+
+def sort_documents(
+    documents: Sequence[Document],
+    seeds: SeedSet,
+    settings: SortSettings | None = None,
+    *,
+    on_progress: ProgressCallback | None = None,
+    collection: Collection | None = None,
+) -> SortResult:
+    """Categorise every document from the seeds.
+
+    Parameters
+    ----------
+    documents:
+        The collection, in order; ``seeds.rows`` index into it.
+    seeds:
+        From :func:`seedsort.seeds.resolve_seeds`.
+    settings:
+        Defaults when ``None``.
+    collection:
+        When given, its skipped files, notes and root are carried into the result.
+    """
+    settings = settings or SortSettings()
+    progress = on_progress or no_progress
+    n, c = len(documents), len(seeds.categories)
+    timings: dict[str, float] = {}
+
+    started = time.perf_counter()
+    progress("vectors", 0, n)
+    vectors = vectorise([doc.text for doc in documents], settings.vectors)
+    progress("vectors", n, n)
+    timings["vectors"] = time.perf_counter() - started
+
+    started = time.perf_counter()
+    neighbours = knn_cosine(vectors, settings.neighbours, on_progress=progress)
+    affinity = symmetric_affinity(neighbours, n)
+    graph = normalised_affinity(affinity)
+    timings["graph"] = time.perf_counter() - started
+
+    started = time.perf_counter()
+    progress("spread", 0, 1)
+    prediction = predict(vectors, graph, seeds.rows, seeds.classes, c, settings.model)
+    progress("spread", 1, 1)
+    timings["spread"] = time.perf_counter() - started
+
+    started = time.perf_counter()
+    order_key = np.array([documents[int(r)].content_hash for r in seeds.rows], dtype=object)
+    if settings.cross_check_folds >= 2:
+        progress("cross-check", 0, 1)
+        held_out = cross_check(
+            vectors, graph, seeds.rows, seeds.classes, c, settings.model, order_key, settings.cross_check_folds
+        )
+        progress("cross-check", 1, 1)
+    else:
+        held_out = np.full((len(seeds), c), np.nan)
+    timings["cross-check"] = time.perf_counter() - started
+
+    started = time.perf_counter()
+    nearest, nearest_sim = nearest_rows(vectors, seeds.rows, NEAREST_SEEDS)
+    timings["nearest seeds"] = time.perf_counter() - started
+
+    probs = prediction.probabilities
+    top2 = np.argsort(-probs, axis=1, kind="stable")[:, :2] if c >= 2 else np.zeros((n, 2), dtype=np.int64)
+    best, second = top2[:, 0], top2[:, 1]
+    rows = np.arange(n)
+    confidence = probs[rows, best]
+    margin = confidence - probs[rows, second]
+
+    seed_label = np.full(n, -1, dtype=np.int64)
+    seed_label[seeds.rows] = seeds.classes
+    checked = ~np.isnan(held_out).any(axis=1)
+    held_best = np.where(checked, np.nan_to_num(held_out, nan=-1.0).argmax(axis=1), -1)
+    cross_checked = np.full(n, -1, dtype=np.int64)
+    cross_checked[seeds.rows] = held_best
+    # A seed is a possible mislabel when a model that never saw it prefers another
+    # category at least MISLABEL_RATIO times over the given one: plain disagreement would
+    # flag every borderline seed on fine-grained category sets.
+    given_p = np.where(checked, np.nan_to_num(held_out, nan=0.0)[np.arange(len(seeds)), seeds.classes], 1.0)
+    best_p = np.where(checked, np.nan_to_num(held_out, nan=0.0).max(axis=1), 0.0)
+    mislabel = np.zeros(n, dtype=bool)
+    mislabel[seeds.rows] = checked & (held_best != seeds.classes) & (best_p >= MISLABEL_RATIO * given_p)
+
+    reached = seed_reach(affinity, seeds.rows)
+    mass = prediction.graph_mass
+    nonseed_mass = mass[reached & (seed_label < 0) & (mass > 0)]
+    floor = settings.min_relative_mass * float(np.median(nonseed_mass)) if nonseed_mass.size else 0.0
+    reached &= mass > floor
+    empty = np.array([not doc.text.strip() for doc in documents], dtype=bool)
+
+    status = np.full(n, "assigned", dtype=object)
+    status[~reached] = "unreached"
+    status[empty] = "empty"
+    status[seeds.rows] = "seed"
+    assigned = np.where(status == "assigned", best, -1)
+    assigned[seeds.rows] = seeds.classes
+    # A seed's confidence is the model's probability for the label the user gave it.
+    confidence = confidence.copy()
+    confidence[seeds.rows] = probs[seeds.rows, seeds.classes]
+    unassigned = assigned < 0
+    confidence[unassigned] = np.nan
+    margin = np.where(unassigned, np.nan, margin)
+
+    estimate = float(np.mean(held_best[checked] == seeds.classes[checked])) if checked.any() else None
+
+    record = {
+        "vectors": settings.vectors.describe(),
+        "neighbours": settings.neighbours,
+        **{key: value for key, value in asdict(settings.model).items()},
+        "spread_iterations": prediction.spread_iterations,
+        "seconds": {key: round(value, 2) for key, value in timings.items()},
+    }
+    return SortResult(
+        ids=tuple(doc.id for doc in documents),
+        sources=tuple(doc.source for doc in documents),
+        snippets=tuple(_snippet(doc.text) for doc in documents),
+        categories=seeds.categories,
+        probabilities=probs.astype(np.float32),
+        assigned=assigned,
+        confidence=confidence,
+        margin=margin,
+        runner_up=np.where(c >= 2, second, -1),
+        status=status.astype(str),
+        seed_label=seed_label,
+        cross_checked=cross_checked,
+        possible_mislabel=mislabel,
+        nearest_seed_rows=nearest,
+        nearest_seed_similarity=nearest_sim,
+        estimated_accuracy=estimate,
+        settings=record,
+        skipped=collection.skipped if collection else (),
+        notes=collection.notes if collection else (),
+        root=collection.root if collection else "",
+    )
+
+
+def sort_folder(
+    path: str | os.PathLike[str],
+    *,
+    seeds_file: str | os.PathLike[str] | None = None,
+    examples_folder: str | os.PathLike[str] | None = None,
+    columns: TableColumns | None = None,
+    settings: SortSettings | None = None,
+    on_progress: ProgressCallback | None = None,
+) -> SortResult:
+    """Read a folder (or one file), gather the seeds, and categorise every document.
+
+    Seeds come from any mix of a labels file, an examples folder (one subfolder per
+    category; its documents join the collection) and a label column of table inputs.
+
+    Raises
+    ------
+    InputError, SeedError
+        With one readable sentence, for unreadable input or unusable seeds.
+    """
+    columns = columns or TableColumns()
+    collection = read_collection(path, columns=columns, on_progress=on_progress)
+    documents = list(collection.documents)
+    pairs = column_labels(documents)
+    notes = list(collection.notes)
+    skipped = list(collection.skipped)
+    if examples_folder is not None:
+        examples, example_pairs = read_examples_folder(examples_folder, columns=columns)
+        documents.extend(examples.documents)
+        pairs.extend(example_pairs)
+        skipped.extend(examples.skipped)
+        notes.extend(examples.notes)
+    if seeds_file is not None:
+        pairs.extend(read_labels_file(seeds_file))
+    if not documents:
+        raise InputError(f"No readable documents in {path}; seedsort reads .txt .md .html .eml .mbox .csv .tsv .jsonl files.")
+    if not pairs:
+        raise InputError(
+            "No seed labels given; pass a labels file with --seeds, an examples folder with "
+            "--examples, or a table with a label column (--label-column)."
+        )
+    seeds = resolve_seeds(documents, pairs, root=Path(collection.root), labels_file=seeds_file)
+    merged = Collection(root=collection.root, documents=tuple(documents), skipped=tuple(skipped), notes=tuple(notes))
+    return sort_documents(documents, seeds, settings, on_progress=on_progress, collection=merged)

@@ -1,0 +1,133 @@
+"""Turning the bytes of a file into text.
+
+Order of trust: a byte-order mark (UTF-8, UTF-16 LE/BE) names the encoding outright;
+without one, strict UTF-8 is tried, because valid UTF-8 is almost never an accident;
+then legacy 8-bit cp1252 (Windows-1252), the usual encoding of old exports and notes,
+which decodes every byte except the five it leaves undefined (0x81, 0x8D, 0x8F, 0x90,
+0x9D). A file with a NUL byte in its first 8 KiB and no UTF-16 mark is binary.
+
+Cost: one pass over the bytes per encoding tried (at most three).
+"""
+
+from __future__ import annotations
+
+import codecs
+import re
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from ._collection import FileReading
+
+BINARY_SNIFF_BYTES = 8192
+"""How much of the start of a file is searched for NUL bytes."""
+
+UTF8 = "utf-8"
+UTF8_SIG = "utf-8-sig"
+UTF16 = "utf-16"
+CP1252 = "cp1252"
+LEGACY_ENCODINGS = frozenset({CP1252})
+"""Encodings that were a guess rather than a certainty; readers note them for the user."""
+
+_UTF16_BOMS = (codecs.BOM_UTF16_LE, codecs.BOM_UTF16_BE)
+_SURROGATE = re.compile("[\ud800-\udfff]")
+
+
+class UndecodableError(ValueError):
+    """The bytes are not text in any encoding we accept; ``str(error)`` is a short reason."""
+
+
+def has_utf16_bom(data: bytes) -> bool:
+    """Whether ``data`` starts with a UTF-16 byte-order mark (either byte order)."""
+    return data.startswith(_UTF16_BOMS)
+
+
+def looks_binary(data: bytes) -> bool:
+    """Whether ``data`` is binary: a NUL byte in its first 8 KiB and no UTF-16 mark.
+
+    UTF-16 text is full of NUL bytes, so its mark exempts it; UTF-16 without a mark is
+    treated as binary, as most tools do.
+    """
+    return b"\x00" in data[:BINARY_SNIFF_BYTES] and not has_utf16_bom(data)
+
+
+def normalise_newlines(text: str) -> str:
+    """Turn Windows (``\\r\\n``) and old Mac (``\\r``) line ends into ``\\n``."""
+    if "\r" not in text:
+        return text
+    return text.replace("\r\n", "\n").replace("\r", "\n")
+
+
+def decode_bytes(data: bytes) -> tuple[str, str]:
+    """Decode ``data`` as text, newlines normalised to ``\\n``.
+
+    Parameters
+    ----------
+    data:
+        The whole content of a file (or of a message part without a usable charset).
+
+    Returns
+    -------
+    text, encoding:
+        The text (without any byte-order mark) and the codec used: ``"utf-8-sig"``,
+        ``"utf-16"``, ``"utf-8"`` or ``"cp1252"`` (the last is in ``LEGACY_ENCODINGS``).
+
+    Raises
+    ------
+    UndecodableError
+        If no accepted encoding decodes the bytes. Binary detection is separate
+        (``looks_binary``) because message parts may legitimately hold NUL bytes.
+    """
+    if data.startswith(codecs.BOM_UTF8):
+        try:
+            return normalise_newlines(data.decode(UTF8_SIG)), UTF8_SIG
+        except UnicodeDecodeError:
+            # A UTF-8 mark on a file edited later in a legacy editor: fall through
+            # to cp1252 for the bytes after the mark.
+            data = data[len(codecs.BOM_UTF8) :]
+    elif has_utf16_bom(data):
+        try:
+            return normalise_newlines(data.decode(UTF16)), UTF16
+        except UnicodeDecodeError:
+            raise UndecodableError("could not decode as UTF-8, UTF-16 or cp1252") from None
+    else:
+        try:
+            return normalise_newlines(data.decode(UTF8)), UTF8
+        except UnicodeDecodeError:
+            pass
+    try:
+        return normalise_newlines(data.decode(CP1252)), CP1252
+    except UnicodeDecodeError:
+        raise UndecodableError("could not decode as UTF-8, UTF-16 or cp1252") from None
+
+
+def clean_text(text: str) -> str:
+    """Make ``text`` safe to store and hash: newlines normalised, no lone surrogates.
+
+    Lone surrogates arrive from JSON escapes such as ``"\\ud800"`` and from the email
+    package's ``surrogateescape`` handling of raw 8-bit headers; they cannot be encoded
+    as UTF-8, so each becomes U+FFFD.
+    """
+    try:
+        text.encode(UTF8)
+    except UnicodeEncodeError:
+        text = _SURROGATE.sub("\ufffd", text)
+    return normalise_newlines(text)
+
+
+def legacy_note(rel: str, encoding: str) -> str:
+    """The note telling the user a file was not UTF-8 and was decoded as ``encoding``."""
+    return f"{rel}: not valid UTF-8, decoded as legacy 8-bit {encoding}; check accented letters"
+
+
+def decode_file_text(data: bytes, rel: str, reading: FileReading) -> str:
+    """``decode_bytes(data)`` for a whole file, adding a note to ``reading`` if legacy 8-bit.
+
+    Raises
+    ------
+    UndecodableError
+        As ``decode_bytes``.
+    """
+    text, encoding = decode_bytes(data)
+    if encoding in LEGACY_ENCODINGS:
+        reading.notes.append(legacy_note(rel, encoding))
+    return text

@@ -1,0 +1,173 @@
+"""The folder walk: find the files, hand each to the reader for its type, gather the results.
+
+Files are listed first (hidden files and folders, whose names start with ".", are left
+out silently; symlinked folders are not followed, so a link loop cannot trap the walk),
+sorted by their relative path, then read one at a time, each opened ``"rb"`` and read
+whole. A file that is binary, undecodable, of an unsupported type or unreadable becomes
+a ``SkippedFile``; only a table whose named column is missing stops the read
+(``InputError``), because every table of the folder would fail the same way.
+
+Cost: one read of every file; memory holds one file (and its decoded text) at a time
+besides the documents.
+"""
+
+from __future__ import annotations
+
+import os
+from collections.abc import Callable
+from pathlib import Path
+
+from .._progress import ProgressCallback, no_progress
+from ..errors import InputError
+from ._collection import Collection, FileReading, SkippedFile, TableColumns
+from ._decode import UndecodableError, clean_text, decode_file_text, looks_binary
+from ._document import Document
+from ._email import read_eml, read_mbox
+from ._html import html_to_text
+from ._tables import read_csv, read_jsonl, read_tsv
+
+Reader = Callable[[bytes, str, TableColumns], FileReading]
+"""Turns a file's bytes (and its relative path, for ids) into documents."""
+
+PROGRESS_STAGE = "read"
+
+
+def read_plain(data: bytes, rel: str, columns: TableColumns) -> FileReading:
+    """Read a ``.txt`` or ``.md`` file as one document, text as it is."""
+    reading = FileReading()
+    text = decode_file_text(data, rel, reading)
+    reading.documents.append(Document.make(rel, rel, clean_text(text)))
+    return reading
+
+
+def read_html(data: bytes, rel: str, columns: TableColumns) -> FileReading:
+    """Read an ``.html``/``.htm`` file as one document of its visible text."""
+    reading = FileReading()
+    text = decode_file_text(data, rel, reading)
+    reading.documents.append(Document.make(rel, rel, clean_text(html_to_text(text))))
+    return reading
+
+
+READERS: dict[str, Reader] = {
+    ".txt": read_plain,
+    ".md": read_plain,
+    ".html": read_html,
+    ".htm": read_html,
+    ".eml": read_eml,
+    ".mbox": read_mbox,
+    ".csv": read_csv,
+    ".tsv": read_tsv,
+    ".jsonl": read_jsonl,
+}
+"""File extension (lower case) -> reader."""
+
+
+def _is_hidden(name: str) -> bool:
+    return name.startswith(".")
+
+
+def list_files(root: Path) -> tuple[list[tuple[str, Path]], list[SkippedFile]]:
+    """The visible files under ``root`` as (relative posix path, path), sorted by the former.
+
+    Folders that cannot be listed come back as skipped entries.
+    """
+    found: list[tuple[str, Path]] = []
+    unlisted: list[SkippedFile] = []
+
+    def on_error(error: OSError) -> None:
+        try:
+            rel = Path(error.filename).relative_to(root).as_posix()
+        except (TypeError, ValueError):
+            rel = "."
+        unlisted.append(SkippedFile(rel, f"could not list folder: {error.strerror or error}"))
+
+    for folder, subfolders, names in os.walk(root, onerror=on_error):
+        subfolders[:] = [name for name in subfolders if not _is_hidden(name)]
+        for name in names:
+            if not _is_hidden(name):
+                path = Path(folder, name)
+                found.append((path.relative_to(root).as_posix(), path))
+    found.sort(key=lambda item: item[0])
+    unlisted.sort(key=lambda item: item.path)
+    return found, unlisted
+
+
+def read_file(path: Path, rel: str, columns: TableColumns) -> FileReading:
+    """Read one file with the reader for its extension; problems become skipped entries.
+
+    Raises
+    ------
+    InputError
+        If a named table column is missing (from the table readers).
+    """
+    extension = path.suffix.lower()
+    reader = READERS.get(extension)
+    if reader is None:
+        what = extension or "(no extension)"
+        return FileReading(skipped=[SkippedFile(rel, f"unsupported file type {what}")])
+    if not path.is_file():  # a FIFO would block forever, a device would never end
+        return FileReading(skipped=[SkippedFile(rel, "not a regular file")])
+    try:
+        with open(path, "rb") as handle:
+            data = handle.read()
+    except OSError as exc:
+        return FileReading(skipped=[SkippedFile(rel, f"could not read: {exc.strerror or exc}")])
+    if looks_binary(data):
+        return FileReading(skipped=[SkippedFile(rel, "binary file")])
+    try:
+        return reader(data, rel, columns)
+    except UndecodableError as exc:
+        return FileReading(skipped=[SkippedFile(rel, str(exc))])
+
+
+def read_collection(
+    path: str | os.PathLike[str],
+    *,
+    columns: TableColumns = TableColumns(),
+    on_progress: ProgressCallback | None = None,
+) -> Collection:
+    """Read every supported file under a folder (or one file) into documents.
+
+    Parameters
+    ----------
+    path:
+        A folder, read recursively, or a single file.
+    columns:
+        Which table columns hold the text, ids and labels; ``None`` fields are guessed.
+    on_progress:
+        Called as ``on_progress("read", files_done, files_total)``, first with 0 done.
+
+    Returns
+    -------
+    Collection
+        Documents sorted by source path, then row/message order; skipped files with a
+        reason; notes on guesses and legacy decoding.
+
+    Raises
+    ------
+    InputError
+        If ``path`` does not exist, or a named table column is missing from a table.
+    """
+    report = on_progress or no_progress
+    target = Path(path)
+    if target.is_dir():
+        root = target
+        files, skipped = list_files(root)
+    elif target.exists():
+        root = target.parent
+        files, skipped = [(target.name, target)], []
+    else:
+        raise InputError(f"No such file or folder: {target}. Check the path.")
+
+    documents: list[Document] = []
+    notes: list[str] = []
+    report(PROGRESS_STAGE, 0, len(files))
+    for done, (rel, file_path) in enumerate(files, start=1):
+        reading = read_file(file_path, rel, columns)
+        documents.extend(reading.documents)
+        skipped.extend(reading.skipped)
+        notes.extend(reading.notes)
+        report(PROGRESS_STAGE, done, len(files))
+    return Collection(
+        root=str(root), documents=tuple(documents), skipped=tuple(skipped), notes=tuple(notes)
+    )
