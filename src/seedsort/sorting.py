@@ -18,7 +18,7 @@ from pathlib import Path
 import numpy as np
 
 from ._progress import ProgressCallback, no_progress
-from .combine import ModelSettings, cross_check, predict
+from .combine import ModelSettings, apply_temperature, cross_check, fit_temperature, predict
 from .errors import InputError
 from .graph import knn_cosine, nearest_rows, seed_reach, symmetric_affinity
 from .results import NEAREST_SEEDS, SortResult
@@ -128,7 +128,10 @@ def sort_documents(
     nearest, nearest_sim = nearest_rows(vectors, seeds.rows, NEAREST_SEEDS)
     timings["nearest seeds"] = time.perf_counter() - started
 
-    probs = prediction.probabilities
+    # Confidences are rescaled so that, on the held-out seeds, they match how often the
+    # model was right (one temperature; the ranking of categories never changes).
+    temperature = fit_temperature(held_out, seeds.classes)
+    probs = apply_temperature(prediction.probabilities, temperature)
     top2 = np.argsort(-probs, axis=1, kind="stable")[:, :2] if c >= 2 else np.zeros((n, 2), dtype=np.int64)
     best, second = top2[:, 0], top2[:, 1]
     rows = np.arange(n)
@@ -176,6 +179,7 @@ def sort_documents(
         "neighbours": settings.neighbours,
         **{key: value for key, value in asdict(settings.model).items()},
         "spread_iterations": prediction.spread_iterations,
+        "temperature": round(temperature, 4),
         "seconds": {key: round(value, 2) for key, value in timings.items()},
     }
     return SortResult(

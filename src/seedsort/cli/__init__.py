@@ -1,0 +1,201 @@
+"""Command line: parse arguments, call one library function, render the result.
+
+Exit codes: 0 success, 1 bad data or a runtime error, 2 usage error, 130 interrupted.
+Errors are one sentence on stderr; ``--debug`` adds the traceback.
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import sys
+import traceback
+import warnings
+from collections.abc import Sequence
+from pathlib import Path
+
+from ..combine import ModelSettings
+from ..errors import SeedsortError, SeedsortWarning
+from ..results import result_format, write_results
+from ..sorting import SortSettings, sort_folder
+from ..sources import TableColumns
+from ..vectors import VECTOR_MODES, VectorSettings
+from ._report import Reporter
+
+EXIT_OK, EXIT_DATA, EXIT_USAGE, EXIT_INTERRUPTED = 0, 1, 2, 130
+
+SORT_EXAMPLES = """\
+examples:
+  seedsort sort corpora_demo/documents --seeds corpora_demo/seeds.csv
+  seedsort sort tickets.csv --text-column description --label-column category
+  seedsort sort inbox/ --examples hand-sorted/ --out results.jsonl
+  seedsort sort notes/ --seeds labels.csv --stem english --show 40
+
+The labels file is a CSV with the header 'document,category'; document is a
+document id (as written in the results file) or a path to the file.
+"""
+
+
+class _Parser(argparse.ArgumentParser):
+    """argparse that reports a usage error as one line and exit code 2."""
+
+    def error(self, message: str) -> None:  # type: ignore[override]
+        self.exit(EXIT_USAGE, f"seedsort: usage error: {message} (see '{self.prog} --help')\n")
+
+
+def _fraction(text: str) -> float:
+    value = float(text)
+    if not 0.0 <= value <= 1.0:
+        raise argparse.ArgumentTypeError(f"must be between 0 and 1, got {text}")
+    return value
+
+
+def _alpha(text: str) -> float:
+    value = float(text)
+    if not 0.0 <= value < 1.0:
+        raise argparse.ArgumentTypeError(f"must be at least 0 and below 1, got {text}")
+    return value
+
+
+def _positive(text: str) -> int:
+    value = int(text)
+    if value < 1:
+        raise argparse.ArgumentTypeError(f"must be a positive whole number, got {text}")
+    return value
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = _Parser(
+        prog="seedsort",
+        description="Categorise a pile of documents from a few hand-labelled seeds. Runs offline.",
+    )
+    parser.add_argument("--version", action="version", version=f"seedsort {_version()}")
+    commands = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+
+    sort = commands.add_parser(
+        "sort",
+        help="categorise every document of a folder or file from seed labels",
+        description=(
+            "Read documents (.txt .md .html .eml .mbox .csv .tsv .jsonl, folders recursively), "
+            "spread the seed labels over a neighbour graph, write one result row per document "
+            "and show a report with the least confident first."
+        ),
+        epilog=SORT_EXAMPLES,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    sort.add_argument("path", help="folder (read recursively) or single file of documents")
+    seeds = sort.add_argument_group("seed labels (at least one)")
+    seeds.add_argument("--seeds", metavar="FILE", help="labels CSV with header 'document,category'")
+    seeds.add_argument("--examples", metavar="DIR", help="folder of examples, one subfolder per category")
+    seeds.add_argument("--label-column", metavar="NAME", help="column of a CSV/TSV/JSONL input holding seed labels")
+    tables = sort.add_argument_group("tables (.csv .tsv .jsonl)")
+    tables.add_argument("--text-column", metavar="NAME", action="append",
+                        help="column with the text; repeat to join several (default: guessed)")
+    tables.add_argument("--id-column", metavar="NAME", help="column with a document id (default: guessed)")
+    out = sort.add_argument_group("output")
+    out.add_argument("--out", metavar="FILE", default="seedsort-results.csv",
+                     help="results file, .csv or .jsonl (default: %(default)s)")
+    out.add_argument("--show", metavar="N", type=int, default=15,
+                     help="how many of the least confident documents to list (default: %(default)s)")
+    out.add_argument("--quiet", action="store_true", help="no progress bars, only the summary")
+    method = sort.add_argument_group("method (defaults are measured; see README)")
+    method.add_argument("--vectors", choices=VECTOR_MODES, default="tfidf",
+                        help="n-gram TF-IDF with a vocabulary, or hashed n-grams for huge collections")
+    method.add_argument("--stem", metavar="LANGUAGE", help="Snowball stemming for a language, e.g. english")
+    method.add_argument("--neighbours", metavar="K", type=_positive, default=10,
+                        help="neighbours per document in the graph (default: %(default)s)")
+    method.add_argument("--alpha", type=_alpha, default=0.99,
+                        help="how far labels spread, 0 to <1 (default: %(default)s)")
+    method.add_argument("--graph-weight", metavar="W", type=_fraction, default=0.5,
+                        help="weight of the graph against the seed classifier (default: %(default)s)")
+    method.add_argument("--class-mass", action="store_true",
+                        help="class mass normalisation: keep category sizes near the seeds' shares")
+    sort.add_argument("--debug", action="store_true", help="show tracebacks on errors")
+    return parser
+
+
+def _version() -> str:
+    from .. import __version__
+
+    return __version__
+
+
+def _settings(args: argparse.Namespace) -> SortSettings:
+    return SortSettings(
+        vectors=VectorSettings(mode=args.vectors, stem_language=args.stem),
+        neighbours=args.neighbours,
+        model=ModelSettings(
+            alpha=args.alpha, graph_weight=args.graph_weight, class_mass_normalisation=args.class_mass
+        ),
+    )
+
+
+def _run_sort(args: argparse.Namespace, reporter: Reporter) -> int:
+    if not (args.seeds or args.examples or args.label_column):
+        raise _UsageError("give seed labels with --seeds FILE, --examples DIR or --label-column NAME")
+    result_format(args.out)  # fail before the work, not after it
+    columns = TableColumns(
+        text=tuple(args.text_column) if args.text_column else None,
+        id=args.id_column,
+        label=args.label_column,
+    )
+    with warnings.catch_warnings(record=True) as caught, reporter.progress() as on_progress:
+        warnings.simplefilter("always", SeedsortWarning)
+        result = sort_folder(
+            args.path,
+            seeds_file=args.seeds,
+            examples_folder=args.examples,
+            columns=columns,
+            settings=_settings(args),
+            on_progress=on_progress,
+        )
+    written = write_results(result, args.out)
+    own = [str(w.message) for w in caught if issubclass(w.category, SeedsortWarning)]
+    reporter.sort_report(result, written=written, warnings=own, show=args.show, source=args.path)
+    return EXIT_OK
+
+
+class _UsageError(Exception):
+    pass
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    """Entry point of the ``seedsort`` command; returns the exit code."""
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if args.command is None:
+        parser.print_help(sys.stderr)
+        return EXIT_USAGE
+    reporter = Reporter(quiet=getattr(args, "quiet", False))
+    try:
+        return _run_sort(args, reporter)
+    except _UsageError as exc:
+        print(f"seedsort: usage error: {exc} (see 'seedsort {args.command} --help')", file=sys.stderr)
+        return EXIT_USAGE
+    except SeedsortError as exc:
+        if args.debug:
+            traceback.print_exc()
+        print(f"seedsort: error: {exc}", file=sys.stderr)
+        return EXIT_DATA
+    except KeyboardInterrupt:
+        print("seedsort: interrupted; nothing was written.", file=sys.stderr)
+        return EXIT_INTERRUPTED
+    except OSError as exc:
+        if args.debug:
+            traceback.print_exc()
+        where = f" ({exc.filename})" if getattr(exc, "filename", None) else ""
+        print(f"seedsort: error: {exc.strerror or exc}{where}.", file=sys.stderr)
+        return EXIT_DATA
+    except Exception as exc:  # the one boundary: anything else is our bug
+        if args.debug:
+            traceback.print_exc()
+        print(
+            f"seedsort: internal error: {type(exc).__name__}: {exc} (run again with --debug "
+            "for the traceback, and report it)",
+            file=sys.stderr,
+        )
+        return EXIT_DATA
+
+
+if __name__ == "__main__":  # pragma: no cover
+    raise SystemExit(main())

@@ -1,0 +1,185 @@
+"""Rendering with rich: progress bars on stderr, the run report on stdout.
+
+Plain text (no colour, no styles, ASCII bars and boxes) when stdout is not a terminal or
+NO_COLOR is set, so the report pipes cleanly into files and other tools.
+"""
+
+from __future__ import annotations
+
+import math
+import os
+import sys
+from collections.abc import Iterator
+from contextlib import contextmanager
+from pathlib import Path
+
+from rich import box
+from rich.console import Console, Group
+from rich.progress import (
+    BarColumn,
+    MofNCompleteColumn,
+    Progress,
+    TextColumn,
+    TimeElapsedColumn,
+    TimeRemainingColumn,
+)
+from rich.table import Table
+from rich.text import Text
+
+from .._progress import ProgressCallback
+from ..results import SortResult
+
+STAGE_NAMES = {
+    "read": "reading files",
+    "vectors": "building vectors",
+    "graph": "neighbour graph",
+    "spread": "spreading labels",
+    "cross-check": "checking seeds",
+}
+BAR_CELLS = 10
+
+
+class Reporter:
+    """Turns library results and progress into terminal output."""
+
+    def __init__(self, *, quiet: bool = False, out: Console | None = None, err: Console | None = None) -> None:
+        plain = bool(os.environ.get("NO_COLOR")) or not sys.stdout.isatty()
+        self.plain = plain
+        self.out = out or Console(
+            highlight=False, emoji=False, color_system=None if plain else "auto",
+            no_color=plain, force_terminal=False if plain else None, soft_wrap=False,
+        )
+        self.err = err or Console(stderr=True, highlight=False, emoji=False)
+        self.quiet = quiet
+
+    @contextmanager
+    def progress(self) -> Iterator[ProgressCallback]:
+        """A progress callback drawing one bar per stage (silent off a terminal or with --quiet)."""
+        if self.quiet or not self.err.is_terminal:
+            yield lambda stage, done, total: None
+            return
+        bars = Progress(
+            TextColumn("{task.description:<18}"), BarColumn(), MofNCompleteColumn(),
+            TimeElapsedColumn(), TextColumn("eta"), TimeRemainingColumn(),
+            console=self.err, transient=True,
+        )
+        tasks: dict[str, int] = {}
+
+        def update(stage: str, done: int, total: int | None) -> None:
+            if stage not in tasks:
+                tasks[stage] = bars.add_task(STAGE_NAMES.get(stage, stage), total=total)
+            bars.update(tasks[stage], completed=done, total=total)
+
+        with bars:
+            yield update
+
+    # -- the report ---------------------------------------------------------------------
+
+    def _bar(self, value: float) -> Text:
+        filled = 0 if math.isnan(value) else round(value * BAR_CELLS)
+        if self.plain:
+            return Text("#" * filled + "-" * (BAR_CELLS - filled))
+        colour = "green" if value >= 0.8 else "yellow" if value >= 0.5 else "red"
+        return Text("█" * filled, style=colour) + Text("░" * (BAR_CELLS - filled), style="dim")
+
+    def _table(self, *columns: str) -> Table:
+        table = Table(box=box.ASCII if self.plain else box.SIMPLE_HEAD, pad_edge=False, show_edge=False)
+        for i, name in enumerate(columns):
+            table.add_column(name, justify="left" if i == 0 else "right", no_wrap=i == 0, overflow="ellipsis")
+        return table
+
+    def sort_report(
+        self, result: SortResult, *, written: Path, warnings: list[str], show: int, source: str
+    ) -> None:
+        out = self.out
+        n = len(result)
+        counts = {s: int((result.status == s).sum()) for s in ("seed", "assigned", "unreached", "empty")}
+        out.print(
+            Text.assemble(
+                ("seedsort", "bold"),
+                f": {n} documents from {source}, {counts['seed']} seeds in "
+                f"{len(result.categories)} categories",
+            )
+        )
+        out.print(Text(f"method: {result.settings.get('vectors')}; {result.settings.get('neighbours')}-NN "
+                       f"graph; spreading alpha {result.settings.get('alpha')} averaged with a seed "
+                       f"classifier (graph weight {result.settings.get('graph_weight')})", style="dim"))
+        out.print()
+
+        table = self._table("category", "documents", "share", "seeds", "mean conf.")
+        for row in result.summary():
+            conf = "-" if math.isnan(row.mean_confidence) else f"{row.mean_confidence:.0%}"
+            table.add_row(row.category, str(row.documents), f"{row.share:.0%}", str(row.seeds), conf)
+        unassigned = counts["unreached"] + counts["empty"]
+        if unassigned:
+            table.add_row("(unassigned)", str(unassigned), f"{unassigned / max(1, n):.0%}", "", "")
+        out.print(table)
+        if result.estimated_accuracy is not None:
+            checked = int((result.cross_checked >= 0).sum())
+            out.print(
+                f"Estimated accuracy {result.estimated_accuracy:.0%}: an estimate from {checked} seeds "
+                "each predicted by a model that did not see it, not a measurement."
+            )
+        out.print()
+
+        doubtful = result.doubtful()
+        if doubtful.size and show > 0:
+            shown = doubtful[:show]
+            out.print(Text(f"Least confident first ({len(shown)} of {doubtful.size} categorised documents)", style="bold"))
+            for row in shown:
+                self._assignment(result, int(row))
+            out.print()
+
+        self._unassigned(result)
+        self._mislabels(result)
+        if result.skipped:
+            out.print(Text(f"Skipped {len(result.skipped)} file(s):", style="bold"))
+            for item in result.skipped[:20]:
+                out.print(f"  {item.path}: {item.reason}")
+            if len(result.skipped) > 20:
+                out.print(f"  ... and {len(result.skipped) - 20} more")
+        for note in [*result.notes, *warnings]:
+            out.print(Text(f"note: {note}", style="dim"))
+        out.print(f"Results: {written} ({n} rows)")
+
+    def _assignment(self, result: SortResult, row: int) -> None:
+        conf = float(result.confidence[row])
+        runner = result.category_name(int(result.runner_up[row]))
+        runner_p = float(result.probabilities[row, result.runner_up[row]]) if runner else 0.0
+        head = Text.assemble(
+            f"{conf:4.0%} ", self._bar(conf), " ",
+            (result.categories[result.assigned[row]], "bold"),
+            (f"  runner-up {runner} {runner_p:.0%}" if runner else "", "dim"),
+        )
+        self.out.print(head, overflow="ellipsis", no_wrap=True)
+        self.out.print(Text(f"     {result.ids[row]}: {result.snippets[row]}"), overflow="ellipsis", no_wrap=True)
+        seeds = result.nearest_seeds(row)
+        if seeds:
+            near = ", ".join(f"{doc} ({cat}, {sim:.2f})" for doc, cat, sim in seeds)
+            self.out.print(Text(f"     nearest seeds: {near}", style="dim"), overflow="ellipsis", no_wrap=True)
+
+    def _unassigned(self, result: SortResult) -> None:
+        for status, title in (
+            ("unreached", "Unassigned: no seed reaches these documents through the graph"),
+            ("empty", "Unassigned: empty documents"),
+        ):
+            rows = [i for i in range(len(result)) if result.status[i] == status]
+            if not rows:
+                continue
+            self.out.print(Text(f"{title} ({len(rows)}):", style="bold"))
+            for i in rows[:20]:
+                self.out.print(Text(f"  {result.ids[i]}: {result.snippets[i]}"), overflow="ellipsis", no_wrap=True)
+            if len(rows) > 20:
+                self.out.print(f"  ... and {len(rows) - 20} more (status '{status}' in the results file)")
+            self.out.print()
+
+    def _mislabels(self, result: SortResult) -> None:
+        rows = [int(i) for i in result.possible_mislabel.nonzero()[0]]
+        if not rows:
+            return
+        self.out.print(Text(f"Seeds that may be mislabelled ({len(rows)}):", style="bold"))
+        for i in rows[:20]:
+            given = result.categories[result.seed_label[i]]
+            other = result.categories[result.cross_checked[i]]
+            self.out.print(Text(f"  {result.ids[i]}: labelled {given}, looks like {other}"), overflow="ellipsis", no_wrap=True)
+        self.out.print()
