@@ -1,0 +1,165 @@
+"""The ``seedsort sort`` command as a user runs it: exit codes, stderr, files, report.
+
+Exit-code convention (0 ok, 1 bad data, 2 usage, 130 interrupted) is common practice for
+command-line tools (the BSD sysexits tradition and argparse's own exit 2 for usage errors).
+"""
+
+from __future__ import annotations
+
+import csv
+import json
+import re
+from pathlib import Path
+
+import pytest
+
+from seedsort.cli import main
+
+ANSI = re.compile(r"\x1b\[")
+
+TEXTS = {
+    "billing": [
+        "I was charged twice for my order, please refund the extra payment",
+        "refund the duplicate charge on my card statement",
+        "my invoice shows the wrong amount, I was overcharged",
+        "payment taken two times, need money back",
+    ],
+    "shipping": [
+        "my parcel has not arrived yet, where is the delivery",
+        "the courier lost my package, tracking shows nothing",
+        "delivery is late by a week, parcel still not here",
+        "where is my parcel, the tracking number does not work",
+    ],
+}
+
+
+@pytest.fixture()
+def pile(tmp_path: Path) -> Path:
+    docs = tmp_path / "docs"
+    docs.mkdir()
+    seeds = ["document,category"]
+    for category, texts in TEXTS.items():
+        for i, text in enumerate(texts):
+            name = f"{category}-{i}.txt"
+            (docs / name).write_text(text, encoding="utf-8")
+            if i < 2:
+                seeds.append(f"{name},{category}")
+    (docs / "blank.txt").write_text("", encoding="utf-8")
+    (tmp_path / "seeds.csv").write_text("\n".join(seeds) + "\n", encoding="utf-8")
+    return tmp_path
+
+
+def run(args: list[str], capsys: pytest.CaptureFixture[str]) -> tuple[int, str, str]:
+    code = main(args)
+    captured = capsys.readouterr()
+    return code, captured.out, captured.err
+
+
+def test_sort_writes_csv_and_plain_report(pile: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    out = pile / "results.csv"
+    code, stdout, stderr = run(
+        ["sort", str(pile / "docs"), "--seeds", str(pile / "seeds.csv"), "--out", str(out)], capsys
+    )
+    assert code == 0, stderr
+    assert not ANSI.search(stdout), "report must be plain text when stdout is not a terminal"
+    assert "Least confident first" in stdout
+    assert "Unassigned: empty documents (1)" in stdout
+    with out.open(encoding="utf-8", newline="") as handle:
+        rows = list(csv.DictReader(handle))
+    assert len(rows) == 9
+    by_id = {r["document"]: r for r in rows}
+    assert by_id["blank.txt"]["status"] == "empty" and by_id["blank.txt"]["category"] == ""
+    assert by_id["billing-3.txt"]["category"] == "billing"
+    assert by_id["shipping-3.txt"]["category"] == "shipping"
+    assert by_id["billing-0.txt"]["is_seed"] == "True"
+
+
+def test_report_fits_80_columns(pile: Path, capsys: pytest.CaptureFixture[str], monkeypatch: pytest.MonkeyPatch) -> None:
+    monkeypatch.setenv("COLUMNS", "80")
+    code, stdout, _ = run(
+        ["sort", str(pile / "docs"), "--seeds", str(pile / "seeds.csv"), "--out", str(pile / "r.csv")], capsys
+    )
+    assert code == 0
+    assert max(len(line) for line in stdout.splitlines()) <= 80
+
+
+def test_sort_jsonl_has_probabilities(pile: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    out = pile / "results.jsonl"
+    code, _, stderr = run(
+        ["sort", str(pile / "docs"), "--seeds", str(pile / "seeds.csv"), "--out", str(out)], capsys
+    )
+    assert code == 0, stderr
+    records = [json.loads(line) for line in out.read_text(encoding="utf-8").splitlines()]
+    assert len(records) == 9
+    for rec in records:
+        assert abs(sum(rec["probabilities"].values()) - 1.0) < 1e-3
+
+
+def test_unknown_seed_is_data_error(pile: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    (pile / "bad.csv").write_text("document,category\nnope.txt,billing\nbilling-0.txt,billing\nshipping-0.txt,shipping\n")
+    code, _, stderr = run(["sort", str(pile / "docs"), "--seeds", str(pile / "bad.csv"), "--out", str(pile / "r.csv")], capsys)
+    assert code == 1
+    assert stderr.startswith("seedsort: error: 1 seed label(s) match no document: nope.txt")
+    assert len(stderr.strip().splitlines()) == 1
+    assert not (pile / "r.csv").exists()
+
+
+def test_one_category_is_data_error(pile: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    (pile / "one.csv").write_text("document,category\nbilling-0.txt,billing\n")
+    code, _, stderr = run(["sort", str(pile / "docs"), "--seeds", str(pile / "one.csv"), "--out", str(pile / "r.csv")], capsys)
+    assert code == 1
+    assert "at least two categories" in stderr
+
+
+def test_missing_folder_is_data_error(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    (tmp_path / "s.csv").write_text("document,category\n")
+    code, _, stderr = run(["sort", str(tmp_path / "absent"), "--seeds", str(tmp_path / "s.csv")], capsys)
+    assert code == 1
+    assert stderr.startswith("seedsort: error:") and len(stderr.strip().splitlines()) == 1
+
+
+def test_no_seeds_is_usage_error(pile: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    code, _, stderr = run(["sort", str(pile / "docs")], capsys)
+    assert code == 2
+    assert stderr.startswith("seedsort: usage error: give seed labels")
+
+
+def test_bad_option_value_is_usage_error(pile: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    with pytest.raises(SystemExit) as exc:
+        main(["sort", str(pile / "docs"), "--seeds", "s.csv", "--alpha", "1.5"])
+    assert exc.value.code == 2
+    err = capsys.readouterr().err
+    assert err.startswith("seedsort: usage error: argument --alpha: must be at least 0 and below 1")
+    assert len(err.strip().splitlines()) == 1
+
+
+def test_bad_output_extension_fails_before_work(pile: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    code, _, stderr = run(
+        ["sort", str(pile / "docs"), "--seeds", str(pile / "seeds.csv"), "--out", str(pile / "r.xlsx")], capsys
+    )
+    assert code == 1
+    assert "end the name in .csv or .jsonl" in stderr
+
+
+def test_interrupt_exits_130(pile: Path, capsys: pytest.CaptureFixture[str], monkeypatch: pytest.MonkeyPatch) -> None:
+    def interrupted(*args: object, **kwargs: object) -> None:
+        raise KeyboardInterrupt
+
+    monkeypatch.setattr("seedsort.cli.sort_folder", interrupted)
+    code, _, stderr = run(["sort", str(pile / "docs"), "--seeds", str(pile / "seeds.csv"), "--out", str(pile / "r.csv")], capsys)
+    assert code == 130
+    assert "interrupted" in stderr
+    assert not (pile / "r.csv").exists()
+
+
+def test_no_command_prints_help_and_exits_2(capsys: pytest.CaptureFixture[str]) -> None:
+    code, _, stderr = run([], capsys)
+    assert code == 2
+    assert "sort" in stderr
+
+
+def test_help_has_examples(capsys: pytest.CaptureFixture[str]) -> None:
+    with pytest.raises(SystemExit) as exc:
+        main(["sort", "--help"])
+    assert exc.value.code == 0
+    assert "examples:" in capsys.readouterr().out
