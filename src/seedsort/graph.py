@@ -50,6 +50,7 @@ def knn_cosine(
     *,
     block_bytes: int = BLOCK_BYTES,
     on_progress: ProgressCallback | None = None,
+    tie_order: np.ndarray | None = None,
 ) -> Neighbours:
     """Exact cosine k-nearest neighbours of every row among all rows (self excluded).
 
@@ -59,6 +60,10 @@ def knn_cosine(
         (n, d) CSR matrix or dense array with L2-normalised rows (zero rows allowed).
     k:
         Neighbours per document (capped at n - 1).
+    tie_order:
+        A permutation of the rows; among equally similar neighbours the one listed first
+        here wins. Default: row order. Pass an order derived from the documents (e.g. their
+        sorted ids) so that the graph does not depend on the order of the collection.
 
     Returns
     -------
@@ -74,19 +79,24 @@ def knn_cosine(
     sparse_in = sp.issparse(vectors)
     if sparse_in:
         vectors = sp.csr_matrix(vectors, dtype=np.float32)
-        transposed = vectors.T.tocsc()
     else:
         vectors = np.asarray(vectors, dtype=np.float32)
-        transposed = vectors.T
+    # Columns of every block come in tie order, so ties (and argpartition's choice among
+    # them) depend on the documents, never on where they sit in the collection.
+    order = np.arange(n) if tie_order is None else np.asarray(tie_order, dtype=np.int64)
+    column_of = np.empty(n, dtype=np.int64)
+    column_of[order] = np.arange(n)
+    transposed = vectors[order].T.tocsc() if sparse_in else vectors[order].T
     rows_per_block = max(1, min(n, block_bytes // (4 * n)))
     for start in range(0, n, rows_per_block):
         stop = min(n, start + rows_per_block)
         block = vectors[start:stop] @ transposed
         block = block.toarray() if sp.issparse(block) else np.asarray(block)
         block = block.astype(np.float32, copy=False)
-        block[np.arange(stop - start), np.arange(start, stop)] = -np.inf
-        # Ties among equal similarities: prefer the earlier document, deterministically.
+        block[np.arange(stop - start), column_of[start:stop]] = -np.inf
+        # Ties among equal similarities: prefer the document first in tie order, deterministically.
         idx, val = _top_k_stable(block, k_eff)
+        idx = order[idx].astype(np.int32)
         keep = val > 0
         indices[start:stop] = np.where(keep, idx, -1)
         sims[start:stop] = np.where(keep, val, 0.0)
@@ -150,7 +160,7 @@ def nearest_rows(
     Returns
     -------
     (rows, similarities): int64 (n, m) document rows (-1 where fewer exist) and float32
-    (n, m) similarities, descending.
+    (n, m) similarities, descending; only targets with positive similarity are listed.
     """
     n = vectors.shape[0]
     targets = np.asarray(targets, dtype=np.int64)
@@ -174,7 +184,7 @@ def nearest_rows(
             if j is not None:
                 block[local, j] = -np.inf
         idx, val = _top_k_stable(block, m_eff)
-        valid = np.isfinite(val)
+        valid = np.isfinite(val) & (val > 0)  # a seed sharing nothing is no evidence
         rows[start:stop, :m_eff] = np.where(valid, targets[idx], -1)
         sims[start:stop, :m_eff] = np.where(valid, val, 0.0)
     return rows, sims

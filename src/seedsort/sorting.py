@@ -101,36 +101,45 @@ def sort_documents(
     timings["vectors"] = time.perf_counter() - started
 
     started = time.perf_counter()
-    neighbours = knn_cosine(vectors, settings.neighbours, on_progress=progress)
+    # Ties between equally similar documents are broken by id, not by collection order.
+    by_id = np.argsort(np.array([doc.id for doc in documents], dtype=object), kind="stable")
+    neighbours = knn_cosine(vectors, settings.neighbours, on_progress=progress, tie_order=by_id)
     affinity = symmetric_affinity(neighbours, n)
     graph = normalised_affinity(affinity)
     timings["graph"] = time.perf_counter() - started
 
+    # Seeds in id order from here on: the classifier fits (and so every probability) must not
+    # depend on the order of the collection, only on the documents.
+    seed_order = np.argsort(np.array([documents[int(r)].id for r in seeds.rows], dtype=object), kind="stable")
+    seed_rows, seed_classes = seeds.rows[seed_order], seeds.classes[seed_order]
+
     started = time.perf_counter()
     progress("spread", 0, 1)
-    prediction = predict(vectors, graph, seeds.rows, seeds.classes, c, settings.model)
+    prediction = predict(vectors, graph, seed_rows, seed_classes, c, settings.model)
     progress("spread", 1, 1)
     timings["spread"] = time.perf_counter() - started
 
     started = time.perf_counter()
-    order_key = np.array([documents[int(r)].content_hash for r in seeds.rows], dtype=object)
+    order_key = np.array([documents[int(r)].content_hash for r in seed_rows], dtype=object)
     if settings.cross_check_folds >= 2:
         progress("cross-check", 0, 1)
-        held_out = cross_check(
-            vectors, graph, seeds.rows, seeds.classes, c, settings.model, order_key, settings.cross_check_folds
+        held_out_by_id = cross_check(
+            vectors, graph, seed_rows, seed_classes, c, settings.model, order_key, settings.cross_check_folds
         )
         progress("cross-check", 1, 1)
     else:
-        held_out = np.full((len(seeds), c), np.nan)
+        held_out_by_id = np.full((len(seeds), c), np.nan)
+    held_out = np.empty_like(held_out_by_id)
+    held_out[seed_order] = held_out_by_id
     timings["cross-check"] = time.perf_counter() - started
 
     started = time.perf_counter()
-    nearest, nearest_sim = nearest_rows(vectors, seeds.rows, NEAREST_SEEDS)
+    nearest, nearest_sim = nearest_rows(vectors, seed_rows, NEAREST_SEEDS)  # ties go to the smaller id
     timings["nearest seeds"] = time.perf_counter() - started
 
     # Confidences are rescaled so that, on the held-out seeds, they match how often the
     # model was right (one temperature; the ranking of categories never changes).
-    temperature = fit_temperature(held_out, seeds.classes)
+    temperature = fit_temperature(held_out_by_id, seed_classes)
     probs = apply_temperature(prediction.probabilities, temperature)
     top2 = np.argsort(-probs, axis=1, kind="stable")[:, :2] if c >= 2 else np.zeros((n, 2), dtype=np.int64)
     best, second = top2[:, 0], top2[:, 1]

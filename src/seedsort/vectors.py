@@ -182,6 +182,7 @@ def vectorise(texts: Sequence[str], settings: VectorSettings | None = None) -> s
     settings = settings or VectorSettings()
     blocks = [_fit_block(block, texts) for block in _blocks(settings)]
     matrix = sp.hstack(blocks, format="csr", dtype=np.float32) if len(blocks) > 1 else blocks[0]
-    matrix = normalize(matrix, norm="l2", copy=False)
+    if matrix.shape[1]:  # sklearn's normalize rejects a matrix with no columns (all texts empty)
+        matrix = normalize(matrix, norm="l2", copy=False)
     matrix.sort_indices()
     return matrix.astype(np.float32, copy=False)

@@ -1,0 +1,164 @@
+"""Label spreading against scikit-learn's LabelSpreading and the closed form of Zhou et al.
+
+References:
+
+* ``sklearn.semi_supervised.LabelSpreading`` (sklearn/semi_supervised/_label_propagation.py):
+  its graph is ``-laplacian(W, normed=True)`` with the diagonal zeroed, i.e.
+  S = D^-1/2 W D^-1/2 for a W with zero diagonal; it starts from Y, iterates
+  F <- alpha S F + (1 - alpha) Y and row-normalises F at the end (rows with no mass are
+  left at zero there, uniform in seedsort's ``to_probabilities``). Deliberate differences:
+  seedsort stops when the *largest* entry change is below tol, scikit-learn when the *sum*
+  of changes is; and seedsort's "cg" solver reaches the same fixed point by conjugate
+  gradient. So the test uses a connected graph and tight tolerances on both sides.
+* Zhou, Bousquet, Lal, Weston & Schölkopf (2004), "Learning with Local and Global
+  Consistency", NIPS 16: the iteration converges to F* = (1 - alpha)(I - alpha S)^-1 Y.
+* Zhu, Ghahramani & Lafferty (2003), class mass normalisation: column j scaled to the
+  category's prior share.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+import scipy.sparse as sp
+from scipy.sparse.csgraph import connected_components
+from sklearn.semi_supervised import LabelSpreading
+
+from seedsort.errors import SpreadingNotConvergedWarning
+from seedsort.graph import knn_cosine, symmetric_affinity
+from seedsort.spreading import (
+    class_mass_normalise,
+    normalised_affinity,
+    seed_matrix,
+    spread_labels,
+    to_probabilities,
+)
+from seedsort.vectors import vectorise
+
+from conftest import TOPICS
+
+SOLVERS = ["iterate", "cg"]
+
+
+@pytest.fixture(scope="module")
+def corpus_affinity() -> tuple[sp.csr_matrix, np.ndarray]:
+    """kNN affinity of the forty topic sentences (k=6, connected) and their labels (-1 = unlabelled)."""
+    texts = [s for group in TOPICS.values() for s in group]
+    w = symmetric_affinity(knn_cosine(vectorise(texts), 6), len(texts))
+    assert connected_components(w, directed=False)[0] == 1  # every row gets mass
+    labels = np.full(len(texts), -1)
+    for topic in range(len(TOPICS)):
+        labels[[10 * topic, 10 * topic + 1]] = topic  # two seeds per topic
+    return w, labels
+
+
+def _random_symmetric(n: int, seed: int, density: float = 0.3) -> sp.csr_matrix:
+    """A random sparse symmetric non-negative W with zero diagonal, made connected by a path."""
+    rng = np.random.default_rng(seed)
+    upper = sp.random(n, n, density=density, random_state=rng, format="csr")
+    w = sp.triu(upper, k=1)
+    w = w + w.T + sp.diags(np.full(n - 1, 0.5), 1) + sp.diags(np.full(n - 1, 0.5), -1)
+    return sp.csr_matrix(w)
+
+
+def _sklearn_label_spreading(w: sp.csr_matrix, labels: np.ndarray, alpha: float) -> np.ndarray:
+    """Reference: sklearn LabelSpreading with a callable kernel returning the fixed W."""
+    dense = w.toarray().astype(np.float64)
+    model = LabelSpreading(kernel=lambda a, b: dense, alpha=alpha, max_iter=100_000, tol=1e-11)
+    model.fit(np.arange(len(labels), dtype=float).reshape(-1, 1), labels)
+    return model.label_distributions_
+
+
+@pytest.mark.parametrize("solver", SOLVERS)
+@pytest.mark.parametrize("alpha", [0.2, 0.9, 0.99])
+def test_matches_sklearn_label_spreading_on_knn_graph(corpus_affinity, solver: str, alpha: float) -> None:
+    """Reference: sklearn.semi_supervised.LabelSpreading(kernel=<W>, alpha) label_distributions_."""
+    w, labels = corpus_affinity
+    expected = _sklearn_label_spreading(w, labels, alpha)
+    seeds = np.flatnonzero(labels >= 0)
+    y = seed_matrix(seeds, labels[seeds], len(labels), len(TOPICS))
+    result = spread_labels(normalised_affinity(w), y, alpha=alpha, tol=1e-13, max_iter=100_000, solver=solver)
+    assert result.converged
+    probs, mass = to_probabilities(result.scores)
+    assert np.all(mass > 0)
+    np.testing.assert_allclose(probs, expected, atol=1e-7)
+
+
+@pytest.mark.parametrize("solver", SOLVERS)
+def test_matches_sklearn_label_spreading_on_random_graph(solver: str) -> None:
+    """Reference: sklearn LabelSpreading on a random weighted symmetric W (three classes)."""
+    w = _random_symmetric(30, seed=3)
+    labels = np.full(30, -1)
+    labels[[0, 7]], labels[[12, 20]], labels[[25]] = 0, 1, 2  # a category with one seed
+    expected = _sklearn_label_spreading(w, labels, 0.8)
+    seeds = np.flatnonzero(labels >= 0)
+    y = seed_matrix(seeds, labels[seeds], 30, 3)
+    result = spread_labels(normalised_affinity(w), y, alpha=0.8, tol=1e-13, max_iter=100_000, solver=solver)
+    np.testing.assert_allclose(to_probabilities(result.scores)[0], expected, atol=1e-7)
+
+
+def test_normalised_affinity_is_d_half_w_d_half() -> None:
+    """Reference: Zhou et al. (2004) S = D^-1/2 W D^-1/2, computed densely with numpy; isolated rows stay 0."""
+    w = _random_symmetric(12, seed=1).toarray()
+    w[11, :] = w[:, 11] = 0.0  # an isolated node
+    degree = w.sum(axis=1)
+    inv = np.where(degree > 0, 1 / np.sqrt(np.where(degree > 0, degree, 1)), 0.0)
+    expected = inv[:, None] * w * inv[None, :]
+    s = normalised_affinity(sp.csr_matrix(w))
+    np.testing.assert_allclose(s.toarray(), expected, atol=1e-12)
+    assert s.dtype == np.float64
+    assert normalised_affinity(sp.csr_matrix(w, dtype=np.float32)).dtype == np.float32
+
+
+@pytest.mark.parametrize("solver", SOLVERS)
+@pytest.mark.parametrize("alpha", [0.0, 0.5, 0.95])
+def test_converges_to_zhou_closed_form(solver: str, alpha: float) -> None:
+    """Reference: Zhou et al. (2004), F* = (1 - alpha)(I - alpha S)^-1 Y, via numpy.linalg.solve."""
+    n = 15
+    s = normalised_affinity(_random_symmetric(n, seed=7))
+    y = seed_matrix(np.array([0, 4, 9]), np.array([0, 1, 1]), n, 2)
+    expected = (1 - alpha) * np.linalg.solve(np.eye(n) - alpha * s.toarray(), y)
+    result = spread_labels(s, y, alpha=alpha, tol=1e-12, max_iter=10_000, solver=solver)
+    assert result.converged
+    np.testing.assert_allclose(result.scores, expected, atol=1e-9)
+
+
+@pytest.mark.parametrize("solver", SOLVERS)
+def test_hitting_the_cap_warns_and_reports_not_converged(solver: str) -> None:
+    """Reference: scikit-learn's convention (warn ConvergenceWarning at max_iter, do not raise)."""
+    s = normalised_affinity(_random_symmetric(40, seed=2, density=0.05))
+    y = seed_matrix(np.array([0, 39]), np.array([0, 1]), 40, 2)
+    with pytest.warns(SpreadingNotConvergedWarning, match="cap of 2 iterations"):
+        result = spread_labels(s, y, alpha=0.99, tol=1e-14, max_iter=2, solver=solver)
+    assert not result.converged
+    assert np.all(np.isfinite(result.scores))
+
+
+def test_bad_alpha_and_solver_are_rejected() -> None:
+    """Reference: Zhou et al. (2004) require 0 <= alpha < 1 for (I - alpha S) to be invertible."""
+    s = normalised_affinity(_random_symmetric(5, seed=0))
+    y = seed_matrix(np.array([0, 1]), np.array([0, 1]), 5, 2)
+    with pytest.raises(ValueError, match="alpha"):
+        spread_labels(s, y, alpha=1.0)
+    with pytest.raises(ValueError, match="solver"):
+        spread_labels(s, y, solver="magic")
+
+
+def test_class_mass_normalise_matches_the_given_shares() -> None:
+    """Reference: Zhu, Ghahramani & Lafferty (2003) class mass normalisation, checked by arithmetic."""
+    scores = np.array([[0.6, 0.1, 0.0], [0.3, 0.2, 0.0], [0.1, 0.7, 0.0]])
+    share = np.array([0.5, 0.3, 0.2])
+    out = class_mass_normalise(scores, share)
+    # Column totals: 1.0 and 1.0 before; scaled to 0.5 and 0.3; the empty column stays 0.
+    np.testing.assert_allclose(out.sum(axis=0), [0.5, 0.3, 0.0])
+    np.testing.assert_allclose(out[:, 0], scores[:, 0] * 0.5)
+    np.testing.assert_allclose(out[:, 1], scores[:, 1] * 0.3)
+    totals = out.sum(axis=0)[:2]
+    np.testing.assert_allclose(totals / totals.sum(), share[:2] / share[:2].sum())
+
+
+def test_to_probabilities_rows_sum_to_one_or_are_uniform() -> None:
+    """Common practice: row normalisation; a row with no mass carries no evidence, so uniform."""
+    probs, mass = to_probabilities(np.array([[2.0, 2.0, 4.0], [0.0, 0.0, 0.0], [-1e-12, 1.0, 0.0]]))
+    np.testing.assert_allclose(probs, [[0.25, 0.25, 0.5], [1 / 3, 1 / 3, 1 / 3], [0.0, 1.0, 0.0]])
+    np.testing.assert_allclose(mass, [8.0, 0.0, 1.0])

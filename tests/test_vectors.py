@@ -1,0 +1,106 @@
+"""Documents -> vectors, against scikit-learn's own TF-IDF and nltk's Snowball stemmer.
+
+References: ``sklearn.feature_extraction.text.TfidfVectorizer`` (sublinear tf, smoothed idf,
+L2 rows) built here independently with the block settings the module docstring states, and
+``nltk.stem.snowball.SnowballStemmer``.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+import scipy.sparse as sp
+from sklearn.feature_extraction.text import TfidfVectorizer
+
+from seedsort.errors import InputError
+from seedsort.vectors import VectorSettings, snowball_languages, vectorise
+
+TEXTS = [
+    "The ferry left late because of fog.",
+    "Fog delayed the ferry again this morning!",
+    "Refund my ticket, the card was charged twice.",
+    "Café crème and croissants at the quay",  # non-ASCII
+    "",  # empty -> all-zero row
+    "The ferry left late because of fog.",  # duplicate text
+]
+
+
+def _reference_block(texts: list[str], **kwargs: object) -> np.ndarray:
+    """Reference: sklearn TfidfVectorizer(sublinear_tf=True), default smooth idf and L2 norm."""
+    return TfidfVectorizer(sublinear_tf=True, **kwargs).fit_transform(texts).toarray()
+
+
+def test_word_block_equals_sklearn_tfidf() -> None:
+    """Reference: sklearn TfidfVectorizer, word 1-2-grams, token pattern \\b\\w+\\b."""
+    ours = vectorise(TEXTS, VectorSettings(char_ngrams=None))
+    ref = _reference_block(TEXTS, ngram_range=(1, 2), token_pattern=r"(?u)\b\w+\b")
+    assert ours.dtype == np.float32 and sp.isspmatrix_csr(ours)
+    np.testing.assert_allclose(ours.toarray(), ref, atol=1e-6)
+
+
+def test_default_vectors_join_word_and_char_blocks_with_equal_weight() -> None:
+    """Reference: sklearn TfidfVectorizer word (1,2) and char_wb (2,5) blocks, each L2, joined / sqrt(2)."""
+    ours = vectorise(TEXTS).toarray()
+    word = _reference_block(TEXTS, ngram_range=(1, 2), token_pattern=r"(?u)\b\w+\b")
+    char = _reference_block(TEXTS, analyzer="char_wb", ngram_range=(2, 5))
+    np.testing.assert_allclose(ours, np.hstack([word, char]) / np.sqrt(2), atol=1e-6)
+
+
+def test_rows_have_unit_norm_or_are_zero() -> None:
+    """Common practice: L2-normalised rows make a dot product a cosine; the empty text gives a zero row."""
+    norms = np.linalg.norm(vectorise(TEXTS).toarray(), axis=1)
+    np.testing.assert_allclose(norms, [1, 1, 1, 1, 0, 1], atol=1e-6)
+
+
+def test_hashed_mode_gives_the_same_cosines_as_tfidf() -> None:
+    """Reference: the TF-IDF cosines above; hashing only renames columns (no collisions at 2**20)."""
+    tfidf = vectorise(TEXTS)
+    hashed = vectorise(TEXTS, VectorSettings(mode="hashed"))
+    assert hashed.shape == (len(TEXTS), 2 * 2**20)
+    np.testing.assert_allclose((hashed @ hashed.T).toarray(), (tfidf @ tfidf.T).toarray(), atol=1e-5)
+
+
+def test_stemming_uses_snowball_stems() -> None:
+    """Reference: nltk SnowballStemmer("english") maps 'delays'/'delayed' and 'charged'/'charging' together."""
+    from nltk.stem.snowball import SnowballStemmer
+
+    stem = SnowballStemmer("english").stem
+    assert stem("delays") == stem("delayed") and stem("charged") == stem("charging")
+    texts = ["delays charged", "delayed charging"]
+    plain = vectorise(texts, VectorSettings(char_ngrams=None, word_ngrams=(1, 1)))
+    stemmed = vectorise(texts, VectorSettings(char_ngrams=None, word_ngrams=(1, 1), stem_language="english"))
+    assert (plain @ plain.T).toarray()[0, 1] == pytest.approx(0.0)
+    assert (stemmed @ stemmed.T).toarray()[0, 1] == pytest.approx(1.0, abs=1e-6)
+    assert "english" in snowball_languages() and "porter" not in snowball_languages()
+
+
+def test_stemmed_bigrams_follow_the_word_range() -> None:
+    """Reference: the n-gram definition (consecutive tokens); 2 tokens give 2 unigrams + 1 bigram."""
+    one = vectorise(["runs quickly"], VectorSettings(char_ngrams=None, stem_language="english"))
+    assert one.nnz == 3
+
+
+def test_all_empty_texts_do_not_crash() -> None:
+    """Common practice: a collection of empty notes has no vocabulary; every row is zero."""
+    out = vectorise(["", "   ", ""])
+    assert out.shape[0] == 3 and out.nnz == 0
+
+
+@pytest.mark.parametrize(
+    ("settings", "message"),
+    [
+        (VectorSettings(mode="embeddings"), "Unknown vector mode"),
+        (VectorSettings(stem_language="klingon"), "Unknown stemming language"),
+        (VectorSettings(word_ngrams=None, char_ngrams=None), "keep at least one"),
+    ],
+)
+def test_bad_settings_raise_input_error(settings: VectorSettings, message: str) -> None:
+    """Common practice: bad options fail with the library's own error and a readable message."""
+    with pytest.raises(InputError, match=message):
+        vectorise(TEXTS, settings)
+
+
+def test_describe_names_the_blocks() -> None:
+    """Common practice: the run record says how vectors were made."""
+    text = VectorSettings(stem_language="german").describe()
+    assert text == "tfidf, word 1-2-grams, char 2-5-grams, german stemming"
