@@ -95,7 +95,7 @@ def build_parser() -> argparse.ArgumentParser:
     out = sort.add_argument_group("output")
     out.add_argument("--out", metavar="FILE", default="seedsort-results.csv",
                      help="results file, .csv or .jsonl (default: %(default)s)")
-    out.add_argument("--show", metavar="N", type=int, default=15,
+    out.add_argument("--show", metavar="N", type=int, default=10,
                      help="how many of the least confident documents to list (default: %(default)s)")
     out.add_argument("--quiet", action="store_true", help="no progress bars, only the summary")
     method = sort.add_argument_group("method (defaults are measured; see README)")

@@ -153,10 +153,11 @@ class Reporter:
         )
         self.out.print(head, overflow="ellipsis", no_wrap=True)
         self.out.print(Text(f"     {result.ids[row]}: {result.snippets[row]}"), overflow="ellipsis", no_wrap=True)
-        seeds = result.nearest_seeds(row)
-        if seeds:
-            near = ", ".join(f"{doc} ({cat}, {sim:.2f})" for doc, cat, sim in seeds)
-            self.out.print(Text(f"     nearest seeds: {near}", style="dim"), overflow="ellipsis", no_wrap=True)
+        for rank, (doc, cat, sim) in enumerate(result.nearest_seeds(row)):
+            label = "nearest seeds" if rank == 0 else ""
+            self.out.print(
+                Text(f"     {label:<13} {sim:.2f} {cat}: {doc}", style="dim"), overflow="ellipsis", no_wrap=True
+            )
 
     def _unassigned(self, result: SortResult) -> None:
         for status, title in (
