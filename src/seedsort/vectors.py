@@ -113,6 +113,13 @@ def _word_ngram_analyzer(settings: VectorSettings) -> str | Callable[[str], list
     return analyse
 
 
+def _transformer(kwargs: dict[str, object], settings: VectorSettings) -> object:
+    """An unfitted hashing or TF-IDF vectoriser for one n-gram block."""
+    if settings.mode == "hashed":
+        return HashingVectorizer(n_features=settings.hash_features, alternate_sign=False, norm=None, **kwargs)
+    return TfidfVectorizer(sublinear_tf=True, dtype=np.float32, **kwargs)
+
+
 def _blocks(settings: VectorSettings) -> list[object]:
     """One scikit-learn transformer per n-gram block (unfitted)."""
     blocks: list[object] = []
@@ -120,7 +127,6 @@ def _blocks(settings: VectorSettings) -> list[object]:
         raise InputError(
             f"Unknown vector mode {settings.mode!r}; choose one of: {', '.join(VECTOR_MODES)}."
         )
-    hashed = settings.mode == "hashed"
     if settings.word_ngrams:
         analyzer = _word_ngram_analyzer(settings)
         kwargs: dict[str, object] = {"lowercase": True}
@@ -128,24 +134,10 @@ def _blocks(settings: VectorSettings) -> list[object]:
             kwargs.update(analyzer="word", ngram_range=settings.word_ngrams, token_pattern=_WORD.pattern)
         else:
             kwargs.update(analyzer=analyzer)
-        if hashed:
-            blocks.append(
-                HashingVectorizer(
-                    n_features=settings.hash_features, alternate_sign=False, norm=None, **kwargs
-                )
-            )
-        else:
-            blocks.append(TfidfVectorizer(sublinear_tf=True, dtype=np.float32, **kwargs))
+        blocks.append(_transformer(kwargs, settings))
     if settings.char_ngrams:
         kwargs = {"analyzer": "char_wb", "ngram_range": settings.char_ngrams, "lowercase": True}
-        if hashed:
-            blocks.append(
-                HashingVectorizer(
-                    n_features=settings.hash_features, alternate_sign=False, norm=None, **kwargs
-                )
-            )
-        else:
-            blocks.append(TfidfVectorizer(sublinear_tf=True, dtype=np.float32, **kwargs))
+        blocks.append(_transformer(kwargs, settings))
     if not blocks:
         raise InputError("Vector settings leave out both word and character n-grams; keep at least one.")
     return blocks
