@@ -103,7 +103,7 @@ def test_cross_check_predicts_each_seed_without_it(model_inputs) -> None:
     rows = np.append(SEED_ROWS, 39)
     classes = np.append(SEED_CLASSES, 4)  # category 4 has one seed: nothing to learn it from
     key = np.array([f"{r:03d}" for r in rows], dtype=object)
-    settings = ModelSettings()
+    settings = ModelSettings(graph_weight=0.5)
     held = cross_check(vectors, graph, rows, classes, 5, settings, key, folds=3)
     folds = fold_of_each_seed(classes, key, 3)
     for f in range(3):
@@ -111,6 +111,7 @@ def test_cross_check_predicts_each_seed_without_it(model_inputs) -> None:
         pred = predict(vectors, graph, rows[train], classes[train], 5, settings)
         for i in np.flatnonzero(~train):
             if classes[i] == 4:
-                assert np.isnan(held[i]).all()
+                assert np.isnan(held.graph[i]).all() and np.isnan(held.classifier[i]).all()
             else:
-                np.testing.assert_allclose(held[i], pred.probabilities[rows[i]], atol=1e-9)
+                blended = held.blend(0.5)[i]
+                np.testing.assert_allclose(blended, pred.probabilities[rows[i]], atol=1e-9)

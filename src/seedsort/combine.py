@@ -35,12 +35,21 @@ from .spreading import (
 )
 
 
+DEFAULT_GRAPH_WEIGHT = 0.5
+#: Graph weights tried when the weight is tuned from the seeds.
+GRAPH_WEIGHT_GRID = tuple(round(w, 2) for w in np.linspace(0.0, 1.0, 11))
+
+
 @dataclass(frozen=True, slots=True)
 class ModelSettings:
-    """Settings of the spreading + classifier model (the vectors and graph are given)."""
+    """Settings of the spreading + classifier model (the vectors and graph are given).
+
+    ``graph_weight`` None means: choose it per run from the seeds (:func:`choose_graph_weight`);
+    where no choice is possible, :data:`DEFAULT_GRAPH_WEIGHT` is used.
+    """
 
     alpha: float = 0.99
-    graph_weight: float = 0.5
+    graph_weight: float | None = None
     classifier_strength: float = 10.0
     class_mass_normalisation: bool = False
     solver: str = "cg"
@@ -99,15 +108,43 @@ def classifier_probabilities(
     return out
 
 
-def predict(
+@dataclass(frozen=True, slots=True)
+class Views:
+    """The two opinions on every document, before they are blended.
+
+    Attributes
+    ----------
+    graph:
+        (m, c) spread probabilities (uniform where the graph has no mass).
+    mass:
+        (m,) spread label mass before normalising.
+    classifier:
+        (m, c) seed-classifier probabilities.
+    spread_iterations:
+        Sparse products the spreading solver used.
+    """
+
+    graph: np.ndarray
+    mass: np.ndarray
+    classifier: np.ndarray
+    spread_iterations: int
+
+    def blend(self, graph_weight: float) -> np.ndarray:
+        """P = w * P_graph + (1 - w) * P_classifier, rows renormalised; classifier alone where the graph has no mass."""
+        w_rows = np.where(self.mass > 0, graph_weight, 0.0)[:, None]
+        probs = w_rows * self.graph + (1.0 - w_rows) * self.classifier
+        return probs / probs.sum(axis=1, keepdims=True)
+
+
+def compute_views(
     vectors: sp.csr_matrix | np.ndarray,
     normalised_graph: sp.csr_matrix,
     seed_rows: np.ndarray,
     seed_classes: np.ndarray,
     n_classes: int,
     settings: ModelSettings,
-) -> Prediction:
-    """Spread the seeds over the graph, fit the seed classifier, blend the two."""
+) -> Views:
+    """Spread the seeds over the graph and fit the seed classifier."""
     n = vectors.shape[0]
     y = seed_matrix(seed_rows, seed_classes, n, n_classes)
     spread = spread_labels(
@@ -120,12 +157,26 @@ def predict(
         scores = class_mass_normalise(scores, share)
     graph_probs, mass = to_probabilities(scores)
     clf_probs = classifier_probabilities(vectors, seed_rows, seed_classes, n_classes, settings.classifier_strength)
-    w = settings.graph_weight
-    # Where the graph has no mass its row is uniform and uninformative: use the classifier alone.
-    w_rows = np.where(mass > 0, w, 0.0)[:, None]
-    probs = w_rows * graph_probs + (1.0 - w_rows) * clf_probs
-    probs /= probs.sum(axis=1, keepdims=True)
-    return Prediction(probabilities=probs, graph_mass=mass, spread_iterations=spread.iterations)
+    return Views(graph=graph_probs, mass=mass, classifier=clf_probs, spread_iterations=spread.iterations)
+
+
+def predict(
+    vectors: sp.csr_matrix | np.ndarray,
+    normalised_graph: sp.csr_matrix,
+    seed_rows: np.ndarray,
+    seed_classes: np.ndarray,
+    n_classes: int,
+    settings: ModelSettings,
+) -> Prediction:
+    """Spread the seeds over the graph, fit the seed classifier, blend the two.
+
+    Uses ``settings.graph_weight``, or :data:`DEFAULT_GRAPH_WEIGHT` when it is None.
+    """
+    views = compute_views(vectors, normalised_graph, seed_rows, seed_classes, n_classes, settings)
+    weight = DEFAULT_GRAPH_WEIGHT if settings.graph_weight is None else settings.graph_weight
+    return Prediction(
+        probabilities=views.blend(weight), graph_mass=views.mass, spread_iterations=views.spread_iterations
+    )
 
 
 def fold_of_each_seed(seed_classes: np.ndarray, order_key: np.ndarray, folds: int) -> np.ndarray:
@@ -151,27 +202,61 @@ def cross_check(
     settings: ModelSettings,
     order_key: np.ndarray,
     folds: int = 5,
-) -> np.ndarray:
-    """Held-out prediction for each seed.
+) -> Views:
+    """Held-out views for each seed: each fold predicted by models fitted without it.
 
     Returns
     -------
-    float64 array (len(seed_rows), n_classes): each seed's probabilities from a model that
-    did not see it; a row of NaN where the seed's category had no other seed (nothing to
-    learn from).
+    Views whose rows are the seeds (in ``seed_rows`` order); rows are NaN where the seed's
+    category had no other seed (nothing to learn it from). ``spread_iterations`` is the total.
     """
     fold = fold_of_each_seed(seed_classes, order_key, folds)
-    predicted = np.full((seed_rows.size, n_classes), np.nan)
+    s, c = seed_rows.size, n_classes
+    graph, clf = np.full((s, c), np.nan), np.full((s, c), np.nan)
+    mass = np.full(s, np.nan)
+    products = 0
     for f in range(min(folds, int(fold.max()) + 1 if fold.size else 0)):
         held = fold == f
         train = ~held
         if np.unique(seed_classes[train]).size < 2:
             continue
-        pred = predict(vectors, normalised_graph, seed_rows[train], seed_classes[train], n_classes, settings)
+        views = compute_views(vectors, normalised_graph, seed_rows[train], seed_classes[train], n_classes, settings)
+        products += views.spread_iterations
         learnable = np.isin(seed_classes[held], seed_classes[train])
         rows = np.flatnonzero(held)[learnable]
-        predicted[rows] = pred.probabilities[seed_rows[rows]]
-    return predicted
+        graph[rows] = views.graph[seed_rows[rows]]
+        clf[rows] = views.classifier[seed_rows[rows]]
+        mass[rows] = views.mass[seed_rows[rows]]
+    return Views(graph=graph, mass=mass, classifier=clf, spread_iterations=products)
+
+
+def choose_graph_weight(held_out: Views, labels: np.ndarray, grid: tuple[float, ...] = GRAPH_WEIGHT_GRID) -> float:
+    """The graph weight whose blend best predicts the held-out seeds.
+
+    Criterion: held-out accuracy, ties broken by held-out log-likelihood after temperature
+    scaling (so a weight is not preferred merely because its blend is sharper). Returns
+    :data:`DEFAULT_GRAPH_WEIGHT` when no seed could be held out.
+    """
+    rows = ~np.isnan(held_out.graph).any(axis=1)
+    if rows.sum() < 2:
+        return DEFAULT_GRAPH_WEIGHT
+    sub = Views(held_out.graph[rows], held_out.mass[rows], held_out.classifier[rows], 0)
+    target = labels[rows]
+    best: tuple[float, float, float] | None = None
+    for w in grid:
+        probs = sub.blend(w)
+        acc = float(np.mean(probs.argmax(axis=1) == target))
+        t = fit_temperature(probs, target)
+        loglik = -_nll(apply_temperature(probs, t), target)
+        key = (acc, loglik, -abs(w - DEFAULT_GRAPH_WEIGHT))
+        if best is None or key > best[:3]:
+            best = (*key,)  # type: ignore[assignment]
+            chosen = w
+    return float(chosen)
+
+
+def _nll(probs: np.ndarray, target: np.ndarray) -> float:
+    return float(-np.mean(np.log(np.clip(probs[np.arange(target.size), target], 1e-12, 1.0))))
 
 
 def fit_temperature(held_out: np.ndarray, labels: np.ndarray) -> float:

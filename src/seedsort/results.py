@@ -38,6 +38,7 @@ class CategorySummary:
     share: float
     mean_confidence: float
     seeds: int
+    estimated_accuracy: float
 
 
 @dataclass(frozen=True)
@@ -68,6 +69,9 @@ class SortResult:
     estimated_accuracy:
         Share of seeds whose held-out prediction matches their label (None when no seed
         could be checked); an estimate, not a measurement on the unlabelled documents.
+    estimated_category_accuracy:
+        (c,) the same per category (share of its held-out seeds predicted right; NaN when
+        none could be checked).
     """
 
     ids: tuple[str, ...]
@@ -86,6 +90,7 @@ class SortResult:
     nearest_seed_rows: np.ndarray
     nearest_seed_similarity: np.ndarray
     estimated_accuracy: float | None
+    estimated_category_accuracy: np.ndarray = field(default_factory=lambda: np.zeros(0))
     settings: dict[str, Any] = field(default_factory=dict)
     skipped: tuple[SkippedFile, ...] = ()
     notes: tuple[str, ...] = ()
@@ -107,7 +112,10 @@ class SortResult:
             auto = members & ~is_seed
             mean_conf = float(np.mean(self.confidence[auto])) if auto.any() else math.nan
             rows.append(
-                CategorySummary(name, int(members.sum()), members.sum() / n, mean_conf, int((members & is_seed).sum()))
+                CategorySummary(
+                    name, int(members.sum()), members.sum() / n, mean_conf, int((members & is_seed).sum()),
+                    float(self.estimated_category_accuracy[j]) if j < len(self.estimated_category_accuracy) else math.nan,
+                )
             )
         return rows
 

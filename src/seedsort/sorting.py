@@ -18,8 +18,17 @@ from pathlib import Path
 import numpy as np
 
 from ._progress import ProgressCallback, no_progress
-from .combine import ModelSettings, apply_temperature, cross_check, fit_temperature, predict
+from .combine import (
+    ModelSettings,
+    Views,
+    apply_temperature,
+    choose_graph_weight,
+    compute_views,
+    cross_check,
+    fit_temperature,
+)
 from .errors import InputError
+from .evaluation import per_category_accuracy
 from .graph import knn_cosine, nearest_rows, seed_reach, symmetric_affinity
 from .results import NEAREST_SEEDS, SortResult
 from .seeds import (
@@ -115,7 +124,7 @@ def sort_documents(
 
     started = time.perf_counter()
     progress("spread", 0, 1)
-    prediction = predict(vectors, graph, seed_rows, seed_classes, c, settings.model)
+    views = compute_views(vectors, graph, seed_rows, seed_classes, c, settings.model)
     progress("spread", 1, 1)
     timings["spread"] = time.perf_counter() - started
 
@@ -123,12 +132,17 @@ def sort_documents(
     order_key = np.array([documents[int(r)].content_hash for r in seed_rows], dtype=object)
     if settings.cross_check_folds >= 2:
         progress("cross-check", 0, 1)
-        held_out_by_id = cross_check(
+        held_views = cross_check(
             vectors, graph, seed_rows, seed_classes, c, settings.model, order_key, settings.cross_check_folds
         )
         progress("cross-check", 1, 1)
     else:
-        held_out_by_id = np.full((len(seeds), c), np.nan)
+        nothing = np.full((len(seeds), c), np.nan)
+        held_views = Views(nothing, np.full(len(seeds), np.nan), nothing, 0)
+    weight = settings.model.graph_weight
+    if weight is None:
+        weight = choose_graph_weight(held_views, seed_classes)
+    held_out_by_id = held_views.blend(weight)
     held_out = np.empty_like(held_out_by_id)
     held_out[seed_order] = held_out_by_id
     timings["cross-check"] = time.perf_counter() - started
@@ -140,7 +154,7 @@ def sort_documents(
     # Confidences are rescaled so that, on the held-out seeds, they match how often the
     # model was right (one temperature; the ranking of categories never changes).
     temperature = fit_temperature(held_out_by_id, seed_classes)
-    probs = apply_temperature(prediction.probabilities, temperature)
+    probs = apply_temperature(views.blend(weight), temperature)
     top2 = np.argsort(-probs, axis=1, kind="stable")[:, :2] if c >= 2 else np.zeros((n, 2), dtype=np.int64)
     best, second = top2[:, 0], top2[:, 1]
     rows = np.arange(n)
@@ -162,7 +176,7 @@ def sort_documents(
     mislabel[seeds.rows] = checked & (held_best != seeds.classes) & (best_p >= MISLABEL_RATIO * given_p)
 
     reached = seed_reach(affinity, seeds.rows)
-    mass = prediction.graph_mass
+    mass = views.mass
     nonseed_mass = mass[reached & (seed_label < 0) & (mass > 0)]
     floor = settings.min_relative_mass * float(np.median(nonseed_mass)) if nonseed_mass.size else 0.0
     reached &= mass > floor
@@ -182,12 +196,15 @@ def sort_documents(
     margin = np.where(unassigned, np.nan, margin)
 
     estimate = float(np.mean(held_best[checked] == seeds.classes[checked])) if checked.any() else None
+    per_category = per_category_accuracy(seeds.classes[checked], held_best[checked], c)
 
     record = {
         "vectors": settings.vectors.describe(),
         "neighbours": settings.neighbours,
         **{key: value for key, value in asdict(settings.model).items()},
-        "spread_iterations": prediction.spread_iterations,
+        "graph_weight": weight,
+        "graph_weight_tuned": settings.model.graph_weight is None,
+        "spread_iterations": views.spread_iterations,
         "temperature": round(temperature, 4),
         "seconds": {key: round(value, 2) for key, value in timings.items()},
     }
@@ -208,6 +225,7 @@ def sort_documents(
         nearest_seed_rows=nearest,
         nearest_seed_similarity=nearest_sim,
         estimated_accuracy=estimate,
+        estimated_category_accuracy=per_category,
         settings=record,
         skipped=collection.skipped if collection else (),
         notes=collection.notes if collection else (),

@@ -106,8 +106,9 @@ def build_parser() -> argparse.ArgumentParser:
                         help="neighbours per document in the graph (default: %(default)s)")
     method.add_argument("--alpha", type=_alpha, default=0.99,
                         help="how far labels spread, 0 to <1 (default: %(default)s)")
-    method.add_argument("--graph-weight", metavar="W", type=_fraction, default=0.5,
-                        help="weight of the graph against the seed classifier (default: %(default)s)")
+    method.add_argument("--graph-weight", metavar="W", type=_fraction, default=None,
+                        help="weight of the graph against the seed classifier, 0 to 1 "
+                        "(default: chosen per run by cross-validation on the seeds)")
     method.add_argument("--class-mass", action="store_true",
                         help="class mass normalisation: keep category sizes near the seeds' shares")
     sort.add_argument("--debug", action="store_true", help="show tracebacks on errors")

@@ -103,22 +103,25 @@ class Reporter:
         )
         out.print(Text(f"method: {result.settings.get('vectors')}; {result.settings.get('neighbours')}-NN "
                        f"graph; spreading alpha {result.settings.get('alpha')} averaged with a seed "
-                       f"classifier (graph weight {result.settings.get('graph_weight')})", style="dim"))
+                       f"classifier (graph weight {result.settings.get('graph_weight'):.1f}"
+                       f"{', chosen from the seeds' if result.settings.get('graph_weight_tuned') else ''})",
+                       style="dim"))
         out.print()
 
-        table = self._table("category", "documents", "share", "seeds", "mean conf.")
+        table = self._table("category", "documents", "share", "seeds", "mean conf.", "est. acc.*")
         for row in result.summary():
             conf = "-" if math.isnan(row.mean_confidence) else f"{row.mean_confidence:.0%}"
-            table.add_row(row.category, str(row.documents), f"{row.share:.0%}", str(row.seeds), conf)
+            est = "-" if math.isnan(row.estimated_accuracy) else f"{row.estimated_accuracy:.0%}"
+            table.add_row(row.category, str(row.documents), f"{row.share:.0%}", str(row.seeds), conf, est)
         unassigned = counts["unreached"] + counts["empty"]
         if unassigned:
-            table.add_row("(unassigned)", str(unassigned), f"{unassigned / max(1, n):.0%}", "", "")
+            table.add_row("(unassigned)", str(unassigned), f"{unassigned / max(1, n):.0%}", "", "", "")
         out.print(table)
         if result.estimated_accuracy is not None:
             checked = int((result.cross_checked >= 0).sum())
             out.print(
-                f"Estimated accuracy {result.estimated_accuracy:.0%}: an estimate from {checked} seeds "
-                "each predicted by a model that did not see it, not a measurement."
+                f"* Estimated accuracy {result.estimated_accuracy:.0%} overall: an estimate from {checked} "
+                "seeds, each predicted by a model that did not see it; not a measurement."
             )
         out.print()
 
