@@ -16,6 +16,7 @@ from dataclasses import asdict, dataclass, field
 from pathlib import Path
 
 import numpy as np
+import scipy.sparse as sp
 
 from ._progress import ProgressCallback, no_progress
 from .combine import (
@@ -77,30 +78,45 @@ def _snippet(text: str) -> str:
     return flat if len(flat) <= SNIPPET_CHARS else flat[: SNIPPET_CHARS - 1] + "…"
 
 
-def sort_documents(
+@dataclass(frozen=True)
+class Prepared:
+    """The seed-independent stages of a run, reusable across runs with other seeds.
+
+    Attributes
+    ----------
+    vectors:
+        (n, d) CSR, L2-normalised rows.
+    affinity:
+        (n, n) CSR, the symmetric kNN affinity W.
+    graph:
+        (n, n) CSR, S = D^-1/2 W D^-1/2.
+    settings_key:
+        The vector and graph settings these were built with.
+    timings:
+        Seconds per stage.
+    """
+
+    vectors: sp.csr_matrix
+    affinity: sp.csr_matrix
+    graph: sp.csr_matrix
+    settings_key: tuple[object, ...]
+    timings: dict[str, float]
+
+
+def _prepared_key(settings: SortSettings) -> tuple[object, ...]:
+    return (settings.vectors, settings.neighbours)
+
+
+def prepare(
     documents: Sequence[Document],
-    seeds: SeedSet,
     settings: SortSettings | None = None,
     *,
     on_progress: ProgressCallback | None = None,
-    collection: Collection | None = None,
-) -> SortResult:
-    """Categorise every document from the seeds.
-
-    Parameters
-    ----------
-    documents:
-        The collection, in order; ``seeds.rows`` index into it.
-    seeds:
-        From :func:`seedsort.seeds.resolve_seeds`.
-    settings:
-        Defaults when ``None``.
-    collection:
-        When given, its skipped files, notes and root are carried into the result.
-    """
+) -> Prepared:
+    """Vectors and neighbour graph of a collection (everything that does not depend on the seeds)."""
     settings = settings or SortSettings()
     progress = on_progress or no_progress
-    n, c = len(documents), len(seeds.categories)
+    n = len(documents)
     timings: dict[str, float] = {}
 
     started = time.perf_counter()
@@ -116,6 +132,43 @@ def sort_documents(
     affinity = symmetric_affinity(neighbours, n)
     graph = normalised_affinity(affinity)
     timings["graph"] = time.perf_counter() - started
+    return Prepared(vectors, affinity, graph, _prepared_key(settings), timings)
+
+
+def sort_documents(
+    documents: Sequence[Document],
+    seeds: SeedSet,
+    settings: SortSettings | None = None,
+    *,
+    on_progress: ProgressCallback | None = None,
+    collection: Collection | None = None,
+    prepared: Prepared | None = None,
+) -> SortResult:
+    """Categorise every document from the seeds.
+
+    Parameters
+    ----------
+    documents:
+        The collection, in order; ``seeds.rows`` index into it.
+    seeds:
+        From :func:`seedsort.seeds.resolve_seeds`.
+    settings:
+        Defaults when ``None``.
+    collection:
+        When given, its skipped files, notes and root are carried into the result.
+    prepared:
+        The output of :func:`prepare` for these documents and settings, to skip rebuilding
+        the vectors and graph (e.g. after adding seeds).
+    """
+    settings = settings or SortSettings()
+    progress = on_progress or no_progress
+    n, c = len(documents), len(seeds.categories)
+    if prepared is None:
+        prepared = prepare(documents, settings, on_progress=progress)
+    elif prepared.settings_key != _prepared_key(settings) or prepared.vectors.shape[0] != n:
+        raise ValueError("prepared vectors and graph were built for other documents or settings")
+    vectors, affinity, graph = prepared.vectors, prepared.affinity, prepared.graph
+    timings: dict[str, float] = dict(prepared.timings)
 
     # Seeds in id order from here on: the classifier fits (and so every probability) must not
     # depend on the order of the collection, only on the documents.
