@@ -2,7 +2,7 @@
 
 References: ``sklearn.linear_model.LogisticRegression`` fitted on *all* feature columns (the
 module fits on the seeds' columns only and claims the same model), the blend formula
-P = w P_graph + (1 - w) P_classifier from the module docstring checked by arithmetic, and
+P ∝ P_graph^w P_classifier^(1 - w) from the module docstring checked by arithmetic, and
 stratified k-fold assignment as in ``sklearn.model_selection.StratifiedKFold`` (every fold
 gets each category's members in turn, so fold sizes within a category differ by at most 1).
 """
@@ -58,9 +58,10 @@ def test_categories_without_seeds_get_zero_probability(model_inputs) -> None:
 
 
 @pytest.mark.parametrize("weight", [0.0, 0.3, 1.0])
-def test_blend_is_the_weighted_average_of_the_two_views(model_inputs, weight: float) -> None:
-    """Reference: the blend P = w P_graph + (1 - w) P_classifier (module docstring), by arithmetic;
-    where the graph has no mass (the empty document) the classifier alone is used."""
+def test_blend_is_the_weighted_geometric_mean_of_the_two_views(model_inputs, weight: float) -> None:
+    """Reference: the log-linear blend P ∝ P_graph^w * P_classifier^(1 - w) (module docstring),
+    computed here by plain numpy arithmetic; where the graph has no mass (the empty document)
+    the classifier alone is used."""
     vectors, graph = model_inputs
     settings = ModelSettings(graph_weight=weight)
     pred = predict(vectors, graph, SEED_ROWS, SEED_CLASSES, 4, settings)
@@ -69,7 +70,9 @@ def test_blend_is_the_weighted_average_of_the_two_views(model_inputs, weight: fl
     clf = classifier_probabilities(vectors, SEED_ROWS, SEED_CLASSES, 4, settings.classifier_strength)
     reached = mass > 0
     assert not reached[-1] and reached[:-1].all()
-    expected = np.where(reached[:, None], weight * graph_probs + (1 - weight) * clf, clf)
+    geometric = np.clip(graph_probs, 1e-12, 1) ** weight * np.clip(clf, 1e-12, 1) ** (1 - weight)
+    geometric /= geometric.sum(axis=1, keepdims=True)
+    expected = np.where(reached[:, None], geometric, clf)
     # The classifier's probabilities are float32 (float32 vectors); the blend renormalises rows.
     np.testing.assert_allclose(pred.probabilities, expected, atol=1e-6)
     np.testing.assert_allclose(pred.graph_mass, mass, atol=1e-9)

@@ -4,6 +4,8 @@ One row per document. ``status`` says how the row should be read:
 
 ``seed``        labelled by the user; ``category`` is the given label.
 ``assigned``    categorised by seedsort.
+``out_of_scope`` fits none of the seeded categories well (its out-of-scope score is above
+                the threshold learnt from held-out seeds): left without a category.
 ``unreached``   no seed reaches it through the neighbour graph (or only with near-zero
                 mass): left without a category rather than forced into one.
 ``empty``       the document has no text.
@@ -27,7 +29,7 @@ from .errors import InputError
 from .sources import SkippedFile
 
 NEAREST_SEEDS = 3
-STATUSES = ("seed", "assigned", "unreached", "empty")
+STATUSES = ("seed", "assigned", "out_of_scope", "unreached", "empty")
 RESULT_FORMATS = ("csv", "jsonl")
 
 
@@ -69,6 +71,9 @@ class SortResult:
     estimated_accuracy:
         Share of seeds whose held-out prediction matches their label (None when no seed
         could be checked); an estimate, not a measurement on the unlabelled documents.
+    out_of_scope:
+        (n,) out-of-scope score in [0, 1], higher = fits the seeded categories less
+        (see :mod:`seedsort.scope`).
     estimated_category_accuracy:
         (c,) the same per category (share of its held-out seeds predicted right; NaN when
         none could be checked).
@@ -91,6 +96,7 @@ class SortResult:
     nearest_seed_similarity: np.ndarray
     estimated_accuracy: float | None
     estimated_category_accuracy: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    out_of_scope: np.ndarray = field(default_factory=lambda: np.zeros(0))
     settings: dict[str, Any] = field(default_factory=dict)
     skipped: tuple[SkippedFile, ...] = ()
     notes: tuple[str, ...] = ()
@@ -149,6 +155,7 @@ class SortResult:
                 "margin": None if math.isnan(marg) else round(marg, 4),
                 "runner_up": self.category_name(int(self.runner_up[i])) if not math.isnan(marg) else None,
                 "status": str(self.status[i]),
+                "out_of_scope": round(float(self.out_of_scope[i]), 4) if len(self.out_of_scope) else None,
                 "is_seed": bool(self.status[i] == "seed"),
                 "possible_mislabel": bool(mislabel[i]),
                 "seed_check": self.category_name(int(self.cross_checked[i])),
@@ -175,7 +182,7 @@ class SortResult:
 
 
 CSV_COLUMNS = [
-    "document", "source", "category", "confidence", "margin", "runner_up", "status", "is_seed",
+    "document", "source", "category", "confidence", "margin", "runner_up", "status", "out_of_scope", "is_seed",
     "possible_mislabel", "seed_check",
 ] + [f"nearest_seed_{j}{suffix}" for j in range(1, NEAREST_SEEDS + 1) for suffix in ("", "_category", "_similarity")]
 

@@ -32,6 +32,7 @@ from .errors import InputError
 from .evaluation import per_category_accuracy
 from .graph import knn_cosine, nearest_rows, seed_reach, symmetric_affinity
 from .results import NEAREST_SEEDS, SortResult
+from .scope import degree_of, out_of_scope_scores, scope_components, scope_threshold
 from .seeds import (
     SeedSet,
     column_labels,
@@ -61,6 +62,9 @@ class SortSettings:
         Spreading and classifier settings.
     cross_check_folds:
         Folds of the held-out check of the seeds (0 turns it off).
+    out_of_scope_quantile:
+        Documents whose out-of-scope score exceeds this quantile of the held-out seeds'
+        scores are left unassigned (see :mod:`seedsort.scope`); None assigns every document.
     min_relative_mass:
         A document whose spread mass is below this fraction of the median mass of the
         reached documents counts as not reached.
@@ -71,6 +75,7 @@ class SortSettings:
     model: ModelSettings = field(default_factory=ModelSettings)
     cross_check_folds: int = 5
     min_relative_mass: float = 1e-4
+    out_of_scope_quantile: float | None = 0.95
 
 
 def _snippet(text: str) -> str:
@@ -228,6 +233,22 @@ def sort_documents(
     mislabel = np.zeros(n, dtype=bool)
     mislabel[seeds.rows] = checked & (held_best != seeds.classes) & (best_p >= MISLABEL_RATIO * given_p)
 
+    # Out-of-scope: score every document and every held-out seed on the same scale, flag
+    # documents above the chosen quantile of the held-out seeds.
+    degree = degree_of(affinity)
+    blended = views.blend(weight)
+    components = scope_components(blended, views.mass, degree)
+    held_components = scope_components(
+        np.nan_to_num(held_out_by_id, nan=1.0), held_views.mass, degree[seed_rows]
+    )
+    held_components[np.isnan(held_out_by_id).any(axis=1)] = np.nan
+    scope = out_of_scope_scores(components, components)
+    threshold = (
+        scope_threshold(out_of_scope_scores(held_components, components), settings.out_of_scope_quantile)
+        if settings.out_of_scope_quantile is not None
+        else None
+    )
+
     reached = seed_reach(affinity, seeds.rows)
     mass = views.mass
     nonseed_mass = mass[reached & (seed_label < 0) & (mass > 0)]
@@ -236,6 +257,8 @@ def sort_documents(
     empty = np.array([not doc.text.strip() for doc in documents], dtype=bool)
 
     status = np.full(n, "assigned", dtype=object)
+    if threshold is not None:
+        status[scope > threshold] = "out_of_scope"
     status[~reached] = "unreached"
     status[empty] = "empty"
     status[seeds.rows] = "seed"
@@ -257,6 +280,8 @@ def sort_documents(
         **{key: value for key, value in asdict(settings.model).items()},
         "graph_weight": weight,
         "graph_weight_tuned": settings.model.graph_weight is None,
+        "out_of_scope_threshold": None if threshold is None else round(threshold, 4),
+        "out_of_scope_quantile": settings.out_of_scope_quantile,
         "spread_iterations": views.spread_iterations,
         "temperature": round(temperature, 4),
         "seconds": {key: round(value, 2) for key, value in timings.items()},
@@ -278,6 +303,7 @@ def sort_documents(
         nearest_seed_rows=nearest,
         nearest_seed_similarity=nearest_sim,
         estimated_accuracy=estimate,
+        out_of_scope=scope,
         estimated_category_accuracy=per_category,
         settings=record,
         skipped=collection.skipped if collection else (),

@@ -109,6 +109,11 @@ def build_parser() -> argparse.ArgumentParser:
     method.add_argument("--graph-weight", metavar="W", type=_fraction, default=None,
                         help="weight of the graph against the seed classifier, 0 to 1 "
                         "(default: chosen per run by cross-validation on the seeds)")
+    method.add_argument("--out-of-scope-quantile", metavar="Q", type=_fraction, default=0.95,
+                        help="leave unassigned the documents less typical than this share of "
+                        "held-out seeds (default: %(default)s)")
+    method.add_argument("--assign-all", action="store_true",
+                        help="give every reachable document a category, even if it fits none well")
     method.add_argument("--class-mass", action="store_true",
                         help="class mass normalisation: keep category sizes near the seeds' shares")
     sort.add_argument("--debug", action="store_true", help="show tracebacks on errors")
@@ -125,6 +130,7 @@ def _settings(args: argparse.Namespace) -> SortSettings:
     return SortSettings(
         vectors=VectorSettings(mode=args.vectors, stem_language=args.stem),
         neighbours=args.neighbours,
+        out_of_scope_quantile=None if args.assign_all else args.out_of_scope_quantile,
         model=ModelSettings(
             alpha=args.alpha, graph_weight=args.graph_weight, class_mass_normalisation=args.class_mass
         ),

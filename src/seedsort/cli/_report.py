@@ -93,7 +93,7 @@ class Reporter:
     ) -> None:
         out = self.out
         n = len(result)
-        counts = {s: int((result.status == s).sum()) for s in ("seed", "assigned", "unreached", "empty")}
+        counts = {s: int((result.status == s).sum()) for s in ("seed", "assigned", "out_of_scope", "unreached", "empty")}
         out.print(
             Text.assemble(
                 ("seedsort", "bold"),
@@ -102,10 +102,15 @@ class Reporter:
             )
         )
         out.print(Text(f"method: {result.settings.get('vectors')}; {result.settings.get('neighbours')}-NN "
-                       f"graph; spreading alpha {result.settings.get('alpha')} averaged with a seed "
+                       f"graph; spreading alpha {result.settings.get('alpha')} blended with a seed "
                        f"classifier (graph weight {result.settings.get('graph_weight'):.1f}"
                        f"{', chosen from the seeds' if result.settings.get('graph_weight_tuned') else ''})",
                        style="dim"))
+        threshold = result.settings.get("out_of_scope_threshold")
+        if threshold is not None:
+            out.print(Text(f"out of scope above score {threshold:.2f} (the 95th percentile of held-out seeds)"
+                           if result.settings.get("out_of_scope_quantile") == 0.95 else
+                           f"out of scope above score {threshold:.2f}", style="dim"))
         out.print()
 
         table = self._table("category", "documents", "share", "seeds", "mean conf.", "est. acc.*")
@@ -113,7 +118,7 @@ class Reporter:
             conf = "-" if math.isnan(row.mean_confidence) else f"{row.mean_confidence:.0%}"
             est = "-" if math.isnan(row.estimated_accuracy) else f"{row.estimated_accuracy:.0%}"
             table.add_row(row.category, str(row.documents), f"{row.share:.0%}", str(row.seeds), conf, est)
-        unassigned = counts["unreached"] + counts["empty"]
+        unassigned = counts["out_of_scope"] + counts["unreached"] + counts["empty"]
         if unassigned:
             table.add_row("(unassigned)", str(unassigned), f"{unassigned / max(1, n):.0%}", "", "", "")
         out.print(table)
@@ -164,10 +169,13 @@ class Reporter:
 
     def _unassigned(self, result: SortResult) -> None:
         for status, title in (
+            ("out_of_scope", "Unassigned: fits none of the seeded categories well"),
             ("unreached", "Unassigned: no seed reaches these documents through the graph"),
             ("empty", "Unassigned: empty documents"),
         ):
             rows = [i for i in range(len(result)) if result.status[i] == status]
+            if status == "out_of_scope":
+                rows.sort(key=lambda i: -float(result.out_of_scope[i]))
             if not rows:
                 continue
             self.out.print(Text(f"{title} ({len(rows)}):", style="bold"))
