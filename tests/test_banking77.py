@@ -54,7 +54,7 @@ def banking77() -> dict[str, object]:
 def seedsort_result(banking77) -> SortResult:
     docs = banking77["docs"]
     seeds = resolve_seeds(docs, banking77["pairs"])
-    return sort_documents(docs, seeds, SortSettings(cross_check_folds=0))
+    return sort_documents(docs, seeds, SortSettings())  # the default run: tuned, calibrated, out-of-scope on
 
 
 def test_seed_sample_is_ten_per_intent(banking77) -> None:
@@ -70,7 +70,7 @@ def test_seedsort_at_least_matches_logistic_regression_on_the_seeds(banking77, s
     docs, test_rows, truth = banking77["docs"], banking77["test_rows"], banking77["test_labels"]
     assigned = seedsort_result.assigned[test_rows]
     predicted = np.array([seedsort_result.category_name(int(a)) or "" for a in assigned])
-    ours = float(np.mean(predicted == truth))  # an unassigned (unreached) document counts as wrong
+    ours = float(np.mean(predicted == truth))  # an unassigned document (unreached, out of scope) counts as wrong
 
     vectors = vectorise([doc.text for doc in docs])
     with warnings.catch_warnings():
@@ -82,3 +82,18 @@ def test_seedsort_at_least_matches_logistic_regression_on_the_seeds(banking77, s
     assert ours >= theirs, message
     assert ours >= 0.70, message  # guards against both collapsing together (measured ~0.765)
     print(message)
+
+
+def test_confidence_is_calibrated(banking77, seedsort_result) -> None:
+    """Expected calibration error (15 equal-width bins, Naeini et al. 2015; the accuracy
+    issue's target is <= 0.05 at 10 seeds per intent) on BANKING77 test.csv, computed with
+    seedsort.evaluation (checked against sklearn.calibration.calibration_curve in
+    test_evaluation.py). The confidences were fitted on held-out seeds only, never on test labels."""
+    from seedsort.evaluation import expected_calibration_error
+
+    rows, truth = banking77["test_rows"], banking77["test_labels"]
+    probs = seedsort_result.probabilities[rows]
+    predicted = np.array(seedsort_result.categories)[probs.argmax(axis=1)]
+    ece = expected_calibration_error(probs.max(axis=1), predicted == truth)
+    print(f"ECE {ece:.4f}")
+    assert ece <= 0.05, ece
