@@ -101,7 +101,7 @@ class Prepared:
         Seconds per stage.
     """
 
-    vectors: sp.csr_matrix
+    vectors: sp.csr_matrix | np.ndarray
     affinity: sp.csr_matrix
     graph: sp.csr_matrix
     settings_key: tuple[object, ...]
@@ -126,7 +126,7 @@ def prepare(
 
     started = time.perf_counter()
     progress("vectors", 0, n)
-    vectors = vectorise([doc.text for doc in documents], settings.vectors)
+    vectors = vectorise([doc.text for doc in documents], settings.vectors, on_progress=progress)
     progress("vectors", n, n)
     timings["vectors"] = time.perf_counter() - started
 

@@ -163,3 +163,39 @@ def test_help_has_examples(capsys: pytest.CaptureFixture[str]) -> None:
         main(["sort", "--help"])
     assert exc.value.code == 0
     assert "examples:" in capsys.readouterr().out
+
+
+def test_embed_mode_without_the_extra_says_what_to_install(
+    pile: Path, capsys: pytest.CaptureFixture[str], monkeypatch: pytest.MonkeyPatch
+) -> None:
+    import seedsort.embeddings as embeddings
+    from seedsort.errors import InputError
+
+    def missing() -> None:
+        raise InputError('The embedding mode needs the optional extra: pip install "seedsort[embed]"')
+
+    monkeypatch.setattr(embeddings, "require_embeddings", missing)
+    code, _, stderr = run(
+        ["sort", str(pile / "docs"), "--seeds", str(pile / "seeds.csv"), "--vectors", "embed", "--out", str(pile / "r.csv")],
+        capsys,
+    )
+    assert code == 1
+    assert stderr.strip() == 'seedsort: error: The embedding mode needs the optional extra: pip install "seedsort[embed]"'
+
+
+def test_embed_mode_sorts_and_caches_beside_the_results(pile: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    pytest.importorskip("onnxruntime", reason='the embedding extra is not installed (pip install "seedsort[embed]")')
+    out = pile / "results.csv"
+    args = ["sort", str(pile / "docs"), "--seeds", str(pile / "seeds.csv"), "--vectors", "embed", "--out", str(out)]
+    code, stdout, stderr = run(args, capsys)
+    assert code == 0, stderr
+    assert "sentence embeddings" in stdout
+    cache = pile / "results.embeddings.npz"
+    assert cache.exists()
+    with out.open(encoding="utf-8", newline="") as handle:
+        rows = {r["document"]: r for r in csv.DictReader(handle)}
+    assert rows["billing-3.txt"]["category"] == "billing"
+    assert rows["shipping-3.txt"]["category"] == "shipping"
+    first = cache.read_bytes()
+    assert run(args, capsys)[0] == 0
+    assert cache.read_bytes() == first  # nothing new to embed: the cache is not rewritten

@@ -100,7 +100,11 @@ def build_parser() -> argparse.ArgumentParser:
     out.add_argument("--quiet", action="store_true", help="no progress bars, only the summary")
     method = sort.add_argument_group("method (defaults are measured; see README)")
     method.add_argument("--vectors", choices=VECTOR_MODES, default="tfidf",
-                        help="n-gram TF-IDF with a vocabulary, or hashed n-grams for huge collections")
+                        help="n-gram TF-IDF with a vocabulary (default), hashed n-grams for huge "
+                        "collections, or sentence embeddings (needs: pip install \"seedsort[embed]\")")
+    method.add_argument("--embedding-cache", metavar="FILE",
+                        help="with --vectors embed: cache file of embeddings per document content "
+                        "(default: beside the results, <results>.embeddings.npz)")
     method.add_argument("--stem", metavar="LANGUAGE", help="Snowball stemming for a language, e.g. english")
     method.add_argument("--neighbours", metavar="K", type=_positive, default=10,
                         help="neighbours per document in the graph (default: %(default)s)")
@@ -128,7 +132,13 @@ def _version() -> str:
 
 def _settings(args: argparse.Namespace) -> SortSettings:
     return SortSettings(
-        vectors=VectorSettings(mode=args.vectors, stem_language=args.stem),
+        vectors=VectorSettings(
+            mode=args.vectors,
+            stem_language=args.stem,
+            embedding_cache=(args.embedding_cache or str(Path(args.out).with_suffix(".embeddings.npz")))
+            if args.vectors == "embed"
+            else None,
+        ),
         neighbours=args.neighbours,
         out_of_scope_quantile=None if args.assign_all else args.out_of_scope_quantile,
         model=ModelSettings(

@@ -32,6 +32,7 @@ from ..results import SortResult
 STAGE_NAMES = {
     "read": "reading files",
     "vectors": "building vectors",
+    "embedding": "embedding texts",
     "graph": "neighbour graph",
     "spread": "spreading labels",
     "cross-check": "checking seeds",
