@@ -10,8 +10,9 @@ token count and cut into batches, each padded only to its longest text -> one on
 session using every core -> mean of the token vectors over the attention mask -> L2
 normalisation (numpy). Rows are unit vectors, so a cosine is a dot product; an empty text
 gives a zero row. Cost: O(total tokens x layers) plus the attention's O(tokens^2) per text;
-about 110-170 short sentences (BANKING77 queries, ~11 words) per second measured on a shared
-2-core x86-64 machine (benchmarks/embedding_speed.py), some 40x slower than n-gram TF-IDF.
+about 250 short sentences (BANKING77 queries, ~11 words) per second in batches of 32 on a
+2-core x86-64 machine (benchmarks/embedding_speed.py; 110-170 while the cores were shared),
+some 17-40x slower than n-gram TF-IDF.
 
 :class:`EmbeddingCache` and :func:`embed_with_cache` keep vectors per document content hash
 in a ``.npz`` file, so a re-run embeds only new or edited documents.

@@ -136,7 +136,7 @@ def embed_with_cache(
     hashes: Sequence[str] | None,
     cache_path: str | os.PathLike[str],
     *,
-    batch_size: int = 64,
+    batch_size: int = 32,
     max_tokens: int = MAX_TOKENS,
     on_progress: ProgressCallback | None = None,
     model_file: str | os.PathLike[str] | None = None,

@@ -184,7 +184,7 @@ def _get_encoder(path: Path | None, threads: int | None = None) -> _Encoder:
 def embed_texts(
     texts: Sequence[str],
     *,
-    batch_size: int = 64,
+    batch_size: int = 32,
     max_tokens: int = MAX_TOKENS,
     on_progress: ProgressCallback | None = None,
     model_file: str | os.PathLike[str] | None = None,
