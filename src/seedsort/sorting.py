@@ -140,6 +140,19 @@ def prepare(
     return Prepared(vectors, affinity, graph, _prepared_key(settings), timings)
 
 
+def _possible_mislabels(held_out: np.ndarray, given: np.ndarray) -> np.ndarray:
+    """Seeds that a model which never saw them puts clearly in another category.
+
+    Clearly: the held-out model prefers another category at least MISLABEL_RATIO times over
+    the given one; plain disagreement would flag every borderline seed on fine-grained
+    category sets. Rows of NaN (seeds that could not be checked) are never flagged.
+    """
+    checked = ~np.isnan(held_out).any(axis=1)
+    probs = np.nan_to_num(held_out, nan=0.0)
+    given_p = probs[np.arange(given.size), given]
+    return checked & (probs.argmax(axis=1) != given) & (probs.max(axis=1) >= MISLABEL_RATIO * given_p)
+
+
 def sort_documents(
     documents: Sequence[Document],
     seeds: SeedSet,
@@ -211,8 +224,9 @@ def sort_documents(
 
     # Confidences are rescaled so that, on the held-out seeds, they match how often the
     # model was right (one temperature; the ranking of categories never changes).
+    blended = views.blend(weight)
     temperature = fit_temperature(held_out_by_id, seed_classes)
-    probs = apply_temperature(views.blend(weight), temperature)
+    probs = apply_temperature(blended, temperature)
     top2 = np.argsort(-probs, axis=1, kind="stable")[:, :2] if c >= 2 else np.zeros((n, 2), dtype=np.int64)
     best, second = top2[:, 0], top2[:, 1]
     rows = np.arange(n)
@@ -225,18 +239,12 @@ def sort_documents(
     held_best = np.where(checked, np.nan_to_num(held_out, nan=-1.0).argmax(axis=1), -1)
     cross_checked = np.full(n, -1, dtype=np.int64)
     cross_checked[seeds.rows] = held_best
-    # A seed is a possible mislabel when a model that never saw it prefers another
-    # category at least MISLABEL_RATIO times over the given one: plain disagreement would
-    # flag every borderline seed on fine-grained category sets.
-    given_p = np.where(checked, np.nan_to_num(held_out, nan=0.0)[np.arange(len(seeds)), seeds.classes], 1.0)
-    best_p = np.where(checked, np.nan_to_num(held_out, nan=0.0).max(axis=1), 0.0)
     mislabel = np.zeros(n, dtype=bool)
-    mislabel[seeds.rows] = checked & (held_best != seeds.classes) & (best_p >= MISLABEL_RATIO * given_p)
+    mislabel[seeds.rows] = _possible_mislabels(held_out, seeds.classes)
 
     # Out-of-scope: score every document and every held-out seed on the same scale, flag
     # documents above the chosen quantile of the held-out seeds.
     degree = degree_of(affinity)
-    blended = views.blend(weight)
     components = scope_components(blended, views.mass, degree)
     held_components = scope_components(
         np.nan_to_num(held_out_by_id, nan=1.0), held_views.mass, degree[seed_rows]
