@@ -199,3 +199,21 @@ def test_embed_mode_sorts_and_caches_beside_the_results(pile: Path, capsys: pyte
     first = cache.read_bytes()
     assert run(args, capsys)[0] == 0
     assert cache.read_bytes() == first  # nothing new to embed: the cache is not rewritten
+
+
+def test_long_category_names_keep_the_table_within_80_columns(
+    pile: Path, capsys: pytest.CaptureFixture[str], monkeypatch: pytest.MonkeyPatch
+) -> None:
+    monkeypatch.setenv("COLUMNS", "80")
+    long_names = {"billing": "billing_" + "x" * 50, "shipping": "shipping_" + "y" * 50}
+    lines = ["document,category"]
+    for category, texts in TEXTS.items():
+        lines += [f"{category}-{i}.txt,{long_names[category]}" for i in range(2)]
+    (pile / "long.csv").write_text("\n".join(lines) + "\n", encoding="utf-8")
+    code, stdout, stderr = run(
+        ["sort", str(pile / "docs"), "--seeds", str(pile / "long.csv"), "--out", str(pile / "r.csv")], capsys
+    )
+    assert code == 0, stderr
+    assert max(len(line) for line in stdout.splitlines()) <= 80
+    header = next(line for line in stdout.splitlines() if line.startswith("category"))
+    assert header.rstrip().endswith("est.*")  # the numbers are never pushed off the screen

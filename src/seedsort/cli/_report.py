@@ -86,7 +86,11 @@ class Reporter:
     def _table(self, *columns: str) -> Table:
         table = Table(box=box.ASCII if self.plain else box.SIMPLE_HEAD, pad_edge=False, show_edge=False)
         for i, name in enumerate(columns):
-            table.add_column(name, justify="left" if i == 0 else "right", no_wrap=i == 0, overflow="ellipsis")
+            if i == 0:  # long category names give way to the numbers, never the reverse
+                others = sum(len(c) for c in columns[1:]) + 3 * (len(columns) - 1) + 1
+                table.add_column(name, no_wrap=True, overflow="ellipsis", max_width=max(12, self.out.width - others))
+            else:
+                table.add_column(name, justify="right", no_wrap=True, min_width=len(name))
         return table
 
     def sort_report(
@@ -114,7 +118,7 @@ class Reporter:
                            f"out of scope above score {threshold:.2f}", style="dim"))
         out.print()
 
-        table = self._table("category", "documents", "share", "seeds", "mean conf.", "est. acc.*")
+        table = self._table("category", "docs", "share", "seeds", "conf.", "est.*")
         for row in result.summary():
             conf = "-" if math.isnan(row.mean_confidence) else f"{row.mean_confidence:.0%}"
             est = "-" if math.isnan(row.estimated_accuracy) else f"{row.estimated_accuracy:.0%}"
@@ -126,8 +130,9 @@ class Reporter:
         if result.estimated_accuracy is not None:
             checked = int((result.cross_checked >= 0).sum())
             out.print(
-                f"* Estimated accuracy {result.estimated_accuracy:.0%} overall: an estimate from {checked} "
-                "seeds, each predicted by a model that did not see it; not a measurement."
+                f"conf.: mean confidence of the categorised documents. est.*: estimated accuracy, "
+                f"{result.estimated_accuracy:.0%} overall; an estimate from {checked} seeds, each "
+                "predicted by a model that did not see it, not a measurement."
             )
         out.print()
 
