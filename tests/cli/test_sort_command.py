@@ -217,3 +217,28 @@ def test_long_category_names_keep_the_table_within_80_columns(
     assert max(len(line) for line in stdout.splitlines()) <= 80
     header = next(line for line in stdout.splitlines() if line.startswith("category"))
     assert header.rstrip().endswith("est.*")  # the numbers are never pushed off the screen
+
+
+def test_closed_pipe_ends_quietly_with_results_written(pile: Path) -> None:
+    """A reader that stops early (`seedsort sort ... | head -1`) is not an error: exit 0,
+    nothing on stderr, the results file complete (common practice for command-line filters).
+    The report is made longer than a pipe's buffer (64 KiB on Linux) so the write must fail."""
+    import subprocess
+    import sys
+
+    docs = pile / "docs"
+    for i in range(400):
+        category = "billing" if i % 2 else "shipping"
+        (docs / f"extra-{i:03d}.txt").write_text(f"{TEXTS[category][i % 4]} (case {i})", encoding="utf-8")
+    out = pile / "results.csv"
+    command = [sys.executable, "-m", "seedsort", "sort", str(docs), "--seeds", str(pile / "seeds.csv"),
+               "--out", str(out), "--show", "1000"]  # fmt: skip
+    with subprocess.Popen(command, stdout=subprocess.PIPE, stderr=subprocess.PIPE) as proc:
+        assert proc.stdout is not None and proc.stderr is not None
+        proc.stdout.readline()
+        proc.stdout.close()  # the reader goes away after one line
+        stderr = proc.stderr.read().decode()
+        assert proc.wait(timeout=120) == 0, stderr
+    assert stderr == ""
+    with out.open(encoding="utf-8", newline="") as handle:
+        assert len(list(csv.DictReader(handle))) == 409

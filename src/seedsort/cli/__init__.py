@@ -169,6 +169,7 @@ def _run_sort(args: argparse.Namespace, reporter: Reporter) -> int:
     written = write_results(result, args.out)
     own = [str(w.message) for w in caught if issubclass(w.category, SeedsortWarning)]
     reporter.sort_report(result, written=written, warnings=own, show=args.show, source=args.path)
+    sys.stdout.flush()  # a closed pipe shows up here, inside the error boundary
     return EXIT_OK
 
 
@@ -194,6 +195,12 @@ def main(argv: Sequence[str] | None = None) -> int:
             traceback.print_exc()
         print(f"seedsort: error: {exc}", file=sys.stderr)
         return EXIT_DATA
+    except BrokenPipeError:
+        # The reader of the report went away (`seedsort sort ... | head`): the results file
+        # is already written, so stop quietly, as command-line filters do.
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+        return EXIT_OK
     except KeyboardInterrupt:
         print("seedsort: interrupted; nothing was written.", file=sys.stderr)
         return EXIT_INTERRUPTED

@@ -40,6 +40,10 @@ STAGE_NAMES = {
 BAR_CELLS = 10
 
 
+def _raise_broken_pipe() -> None:
+    raise BrokenPipeError
+
+
 class Reporter:
     """Turns library results and progress into terminal output."""
 
@@ -51,6 +55,8 @@ class Reporter:
             no_color=plain, force_terminal=False if plain else None, soft_wrap=False,
         )
         self.err = err or Console(stderr=True, highlight=False, emoji=False)
+        # rich exits with status 1 on a closed pipe; let the CLI's error boundary decide.
+        self.out.on_broken_pipe = _raise_broken_pipe  # type: ignore[method-assign]
         self.quiet = quiet
 
     @contextmanager
