@@ -90,7 +90,7 @@ class Prepared:
     Attributes
     ----------
     vectors:
-        (n, d) CSR, L2-normalised rows.
+        (n, d) L2-normalised rows: CSR for n-grams, a dense array for embeddings.
     affinity:
         (n, n) CSR, the symmetric kNN affinity W.
     graph:

@@ -119,9 +119,9 @@ class Reporter:
                        style="dim"))
         threshold = result.settings.get("out_of_scope_threshold")
         if threshold is not None:
-            out.print(Text(f"out of scope above score {threshold:.2f} (the 95th percentile of held-out seeds)"
-                           if result.settings.get("out_of_scope_quantile") == 0.95 else
-                           f"out of scope above score {threshold:.2f}", style="dim"))
+            quantile = result.settings.get("out_of_scope_quantile")
+            out.print(Text(f"out of scope above score {threshold:.2f} (quantile {quantile:g} of the "
+                           "held-out seeds' scores)", style="dim"))
         out.print()
 
         table = self._table("category", "docs", "share", "seeds", "conf.", "est.*")
