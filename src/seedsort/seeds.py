@@ -182,6 +182,24 @@ def resolve_seeds(
         is given two different categories, when fewer than two categories remain, or when
         a seed document is empty.
     """
+    return seed_set(documents, match_references(documents, pairs, root=root, labels_file=labels_file))
+
+
+def match_references(
+    documents: Sequence[Document],
+    pairs: Sequence[tuple[str, str]],
+    *,
+    root: str | os.PathLike[str] | None = None,
+    labels_file: str | os.PathLike[str] | None = None,
+) -> dict[int, str]:
+    """Row -> category for (reference, category) pairs; references are ids or paths.
+
+    Raises
+    ------
+    SeedError
+        when references match no document (the first few are named), or when one document
+        is given two different categories.
+    """
     names = _index(documents, Path(root) if root else None)
     base = Path(labels_file).resolve().parent if labels_file else None
     root_path = Path(root) if root else None
@@ -205,6 +223,17 @@ def resolve_seeds(
             f"{len(missing)} seed label(s) match no document: {shown}; use the document ids "
             "shown in the results file (relative paths, path#row-N, path#message-N)."
         )
+    return chosen
+
+
+def seed_set(documents: Sequence[Document], chosen: dict[int, str]) -> SeedSet:
+    """A :class:`SeedSet` from row -> category.
+
+    Raises
+    ------
+    SeedError
+        when fewer than two categories are given, or when a seed document is empty.
+    """
     empty = [documents[r].id for r in chosen if not documents[r].text.strip()]
     if empty:
         raise SeedError(

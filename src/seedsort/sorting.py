@@ -320,6 +320,57 @@ def sort_documents(
     )
 
 
+@dataclass(frozen=True)
+class Gathered:
+    """A collection read for a run, with its seed labels by origin (references not yet resolved)."""
+
+    collection: Collection
+    label_column: list[tuple[str, str]]
+    examples: list[tuple[str, str]]
+    seed_file: list[tuple[str, str]]
+
+    @property
+    def documents(self) -> tuple[Document, ...]:
+        return self.collection.documents
+
+    def all_pairs(self) -> list[tuple[str, str]]:
+        return self.label_column + self.examples + self.seed_file
+
+
+def gather(
+    path: str | os.PathLike[str],
+    *,
+    seeds_file: str | os.PathLike[str] | None = None,
+    examples_folder: str | os.PathLike[str] | None = None,
+    columns: TableColumns | None = None,
+    on_progress: ProgressCallback | None = None,
+) -> Gathered:
+    """Read a folder (or one file) and the seed labels given with it.
+
+    Raises
+    ------
+    InputError
+        when nothing readable is found.
+    """
+    columns = columns or TableColumns()
+    collection = read_collection(path, columns=columns, on_progress=on_progress)
+    documents = list(collection.documents)
+    label_column = column_labels(documents)
+    examples: list[tuple[str, str]] = []
+    notes = list(collection.notes)
+    skipped = list(collection.skipped)
+    if examples_folder is not None:
+        example_docs, examples = read_examples_folder(examples_folder, columns=columns)
+        documents.extend(example_docs.documents)
+        skipped.extend(example_docs.skipped)
+        notes.extend(example_docs.notes)
+    seed_file = read_labels_file(seeds_file) if seeds_file is not None else []
+    if not documents:
+        raise InputError(f"No readable documents in {path}; seedsort reads .txt .md .html .eml .mbox .csv .tsv .jsonl files.")
+    merged = Collection(root=collection.root, documents=tuple(documents), skipped=tuple(skipped), notes=tuple(notes))
+    return Gathered(merged, label_column, examples, seed_file)
+
+
 def sort_folder(
     path: str | os.PathLike[str],
     *,
@@ -333,33 +384,23 @@ def sort_folder(
 
     Seeds come from any mix of a labels file, an examples folder (one subfolder per
     category; its documents join the collection) and a label column of table inputs.
+    Nothing is remembered between runs; :func:`seedsort.workflow.sort_into_workspace`
+    keeps documents, decisions and runs in a workspace.
 
     Raises
     ------
     InputError, SeedError
         With one readable sentence, for unreadable input or unusable seeds.
     """
-    columns = columns or TableColumns()
-    collection = read_collection(path, columns=columns, on_progress=on_progress)
-    documents = list(collection.documents)
-    pairs = column_labels(documents)
-    notes = list(collection.notes)
-    skipped = list(collection.skipped)
-    if examples_folder is not None:
-        examples, example_pairs = read_examples_folder(examples_folder, columns=columns)
-        documents.extend(examples.documents)
-        pairs.extend(example_pairs)
-        skipped.extend(examples.skipped)
-        notes.extend(examples.notes)
-    if seeds_file is not None:
-        pairs.extend(read_labels_file(seeds_file))
-    if not documents:
-        raise InputError(f"No readable documents in {path}; seedsort reads .txt .md .html .eml .mbox .csv .tsv .jsonl files.")
+    gathered = gather(
+        path, seeds_file=seeds_file, examples_folder=examples_folder, columns=columns, on_progress=on_progress
+    )
+    pairs = gathered.all_pairs()
     if not pairs:
         raise InputError(
             "No seed labels given; pass a labels file with --seeds, an examples folder with "
             "--examples, or a table with a label column (--label-column)."
         )
-    seeds = resolve_seeds(documents, pairs, root=Path(collection.root), labels_file=seeds_file)
-    merged = Collection(root=collection.root, documents=tuple(documents), skipped=tuple(skipped), notes=tuple(notes))
-    return sort_documents(documents, seeds, settings, on_progress=on_progress, collection=merged)
+    documents = list(gathered.documents)
+    seeds = resolve_seeds(documents, pairs, root=Path(gathered.collection.root), labels_file=seeds_file)
+    return sort_documents(documents, seeds, settings, on_progress=on_progress, collection=gathered.collection)
