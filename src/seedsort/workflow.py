@@ -16,6 +16,7 @@ from __future__ import annotations
 import hashlib
 import math
 import os
+import tempfile
 import time
 from collections.abc import Sequence
 from dataclasses import asdict, dataclass, fields, replace
@@ -23,6 +24,7 @@ from pathlib import Path
 from typing import Any
 
 import numpy as np
+import pandas as pd
 
 from ._progress import ProgressCallback, no_progress
 from .combine import ModelSettings
@@ -352,7 +354,9 @@ class WorkspaceReview:
         return front + [(int(r), reasons[str(status[r])]) for r in ranked]
 
     def _build_queue(self) -> list[ReviewItem]:
-        items = []
+        items: list[ReviewItem] = []
+        if self._limit <= 0:
+            return items
         for row, reason in self._rows_in_order():
             if self._documents[row].id in self._decided:
                 continue
@@ -360,6 +364,16 @@ class WorkspaceReview:
             if len(items) >= self._limit:
                 break
         return items
+
+    def close(self) -> None:
+        """Close the workspace (every decision is already committed)."""
+        self._store.close()
+
+    def __enter__(self) -> WorkspaceReview:
+        return self
+
+    def __exit__(self, *exc: object) -> None:
+        self.close()
 
     def _item(self, row: int, reason: str) -> ReviewItem:
         result, doc = self._result, self._documents[row]
@@ -384,6 +398,38 @@ class WorkspaceReview:
             margin=None if math.isnan(margin) else margin,
             reason=reason,
         )
+
+
+def write_suggestions(items: Sequence[ReviewItem], path: str | os.PathLike[str]) -> Path:
+    """Write suggested documents as a labels CSV whose ``category`` column is left to fill in.
+
+    Columns: document, category (empty), guess (the run's category), reason, text (first 200
+    characters). The file is accepted by ``--seeds`` as it is: rows with an empty category
+    are ignored.
+    """
+    path = Path(path)
+    if path.suffix.lower() != ".csv":
+        raise InputError(f"Write suggestions to a .csv file, not {path.name}.")
+    frame = pd.DataFrame(
+        [
+            {"document": item.id, "category": "", "guess": item.category or "", "reason": item.reason,
+             "text": " ".join(item.text.split())[:200]}
+            for item in items
+        ],
+        columns=["document", "category", "guess", "reason", "text"],
+    )
+    directory = path.parent if str(path.parent) else Path(".")
+    if not directory.is_dir():
+        raise InputError(f"Folder {directory} does not exist; create it first.")
+    fd, tmp = tempfile.mkstemp(prefix=".seedsort-", suffix=".part", dir=directory)
+    try:
+        with os.fdopen(fd, "w", encoding="utf-8", newline="") as handle:
+            frame.to_csv(handle, index=False)
+        os.replace(tmp, path)
+    except BaseException:
+        Path(tmp).unlink(missing_ok=True)
+        raise
+    return path
 
 
 def open_review(
@@ -422,4 +468,5 @@ __all__ = [
     "settings_from_dict",
     "settings_to_dict",
     "sort_into_workspace",
+    "write_suggestions",
 ]

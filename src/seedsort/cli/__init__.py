@@ -20,6 +20,9 @@ from ..results import result_format, write_results
 from ..sorting import SortSettings, sort_folder
 from ..sources import TableColumns
 from ..vectors import VECTOR_MODES, VectorSettings
+from ..review import REVIEW_ORDERS
+from ..workflow import open_review, sort_into_workspace, write_suggestions
+from ..workspace import default_workspace_path
 from ._report import Reporter
 
 EXIT_OK, EXIT_DATA, EXIT_USAGE, EXIT_INTERRUPTED = 0, 1, 2, 130
@@ -27,12 +30,37 @@ EXIT_OK, EXIT_DATA, EXIT_USAGE, EXIT_INTERRUPTED = 0, 1, 2, 130
 SORT_EXAMPLES = """\
 examples:
   seedsort sort corpora_demo/documents --seeds corpora_demo/seeds.csv
+  seedsort sort corpora_demo/documents          # again, with every label recorded so far
   seedsort sort tickets.csv --text-column description --label-column category
   seedsort sort inbox/ --examples hand-sorted/ --out results.jsonl
   seedsort sort notes/ --seeds labels.csv --stem english --show 40
 
 The labels file is a CSV with the header 'document,category'; document is a
 document id (as written in the results file) or a path to the file.
+
+Each run is remembered in a workspace file beside the collection
+(<folder>.seedsort.sqlite): the documents, every label given (seed files,
+examples, reviews) and each run's results. Later runs use every label recorded,
+so --seeds is only needed when there are new ones.
+"""
+
+
+REVIEW_EXAMPLES = """\
+examples:
+  seedsort review corpora_demo/documents
+  seedsort review corpora_demo/documents --order suggested
+  seedsort review corpora_demo/documents --category lost_property
+  seedsort review corpora_demo/documents --order seeds     # audit the seeds themselves
+  printf 'a\\n2\\nq\\n' | seedsort review corpora_demo/documents   # scripted
+
+Run 'seedsort sort' on the collection first; afterwards run it again (no --seeds
+needed) to write the results file with your corrections.
+"""
+
+SUGGEST_EXAMPLES = """\
+examples:
+  seedsort suggest corpora_demo/documents
+  seedsort suggest corpora_demo/documents --count 40 --out to-label.csv
 """
 
 
@@ -84,7 +112,7 @@ def build_parser() -> argparse.ArgumentParser:
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     sort.add_argument("path", help="folder (read recursively) or single file of documents")
-    seeds = sort.add_argument_group("seed labels (at least one)")
+    seeds = sort.add_argument_group("seed labels (needed on the first run; later runs reuse the recorded ones)")
     seeds.add_argument("--seeds", metavar="FILE", help="labels CSV with header 'document,category'")
     seeds.add_argument("--examples", metavar="DIR", help="folder of examples, one subfolder per category")
     seeds.add_argument("--label-column", metavar="NAME", help="column of a CSV/TSV/JSONL input holding seed labels")
@@ -98,6 +126,10 @@ def build_parser() -> argparse.ArgumentParser:
     out.add_argument("--show", metavar="N", type=int, default=10,
                      help="how many of the least confident documents to list (default: %(default)s)")
     out.add_argument("--quiet", action="store_true", help="no progress bars, only the summary")
+    out.add_argument("--workspace", metavar="FILE",
+                     help="workspace file (default: <folder or file>.seedsort.sqlite beside the collection)")
+    out.add_argument("--no-workspace", action="store_true",
+                     help="remember nothing: no workspace is read or written")
     method = sort.add_argument_group("method (defaults are measured; see README)")
     method.add_argument("--vectors", choices=VECTOR_MODES, default="tfidf",
                         help="n-gram TF-IDF with a vocabulary (default), hashed n-grams for huge "
@@ -121,7 +153,56 @@ def build_parser() -> argparse.ArgumentParser:
     method.add_argument("--class-mass", action="store_true",
                         help="class mass normalisation: keep category sizes near the seeds' shares")
     sort.add_argument("--debug", action="store_true", help="show tracebacks on errors")
+
+    review = commands.add_parser(
+        "review",
+        help="check doubtful documents one by one; each decision is saved at once",
+        description=(
+            "Go through the documents of the last run one at a time: accept the proposed "
+            "category, pick another, mark it as fitting none, skip or undo. Decisions are saved "
+            "in the workspace the moment they are made and become seeds; every few decisions "
+            "the labels re-spread and the queue reorders. Single keys on a terminal (press ? "
+            "for the keys), one command per line otherwise."
+        ),
+        epilog=REVIEW_EXAMPLES,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    _workspace_arguments(review)
+    review.add_argument("--order", choices=REVIEW_ORDERS, default="margin",
+                        help="margin: closest calls first (default); suggested: the labels that would "
+                        "help the run most; category: one category's members (with --category); "
+                        "seeds: seeds whose label a held-out model disputes")
+    review.add_argument("--category", metavar="NAME", help="review the members of this category (implies --order category)")
+    review.add_argument("--limit", metavar="N", type=_positive, default=200,
+                        help="documents in the queue at a time (default: %(default)s)")
+    review.add_argument("--refresh-every", metavar="N", type=_positive, default=5,
+                        help="re-spread the labels after this many decisions (default: %(default)s)")
+    review.add_argument("--debug", action="store_true", help="show tracebacks on errors")
+
+    suggest = commands.add_parser(
+        "suggest",
+        help="list the documents whose labels would improve the run most",
+        description=(
+            "Propose documents to label next: uncertain ones in dense parts of the graph and "
+            "parts no seed reaches yet, spread across categories, no two near-duplicates. "
+            "Label them in 'seedsort review --order suggested', or fill in the category "
+            "column of the --out file and pass it to 'seedsort sort --seeds'."
+        ),
+        epilog=SUGGEST_EXAMPLES,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    _workspace_arguments(suggest)
+    suggest.add_argument("--count", metavar="N", type=_positive, default=20, help="how many (default: %(default)s)")
+    suggest.add_argument("--out", metavar="FILE",
+                         help="also write them as a labels CSV with an empty category column to fill in")
+    suggest.add_argument("--debug", action="store_true", help="show tracebacks on errors")
     return parser
+
+
+def _workspace_arguments(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument("path", nargs="?", help="the collection given to 'seedsort sort' (its workspace is used)")
+    parser.add_argument("--workspace", metavar="FILE",
+                        help="the workspace file (default: <folder or file>.seedsort.sqlite beside the collection)")
 
 
 def _version() -> str:
@@ -148,7 +229,8 @@ def _settings(args: argparse.Namespace) -> SortSettings:
 
 
 def _run_sort(args: argparse.Namespace, reporter: Reporter) -> int:
-    if not (args.seeds or args.examples or args.label_column):
+    workspace = None if args.no_workspace else Path(args.workspace or default_workspace_path(args.path))
+    if not (args.seeds or args.examples or args.label_column) and (workspace is None or not workspace.exists()):
         raise _UsageError("give seed labels with --seeds FILE, --examples DIR or --label-column NAME")
     result_format(args.out)  # fail before the work, not after it
     columns = TableColumns(
@@ -158,19 +240,59 @@ def _run_sort(args: argparse.Namespace, reporter: Reporter) -> int:
     )
     with warnings.catch_warnings(record=True) as caught, reporter.progress() as on_progress:
         warnings.simplefilter("always", SeedsortWarning)
-        result = sort_folder(
-            args.path,
-            seeds_file=args.seeds,
-            examples_folder=args.examples,
-            columns=columns,
-            settings=_settings(args),
-            on_progress=on_progress,
+        options = dict(
+            seeds_file=args.seeds, examples_folder=args.examples, columns=columns,
+            settings=_settings(args), on_progress=on_progress,
         )
+        if workspace is None:
+            result, run = sort_folder(args.path, **options), None  # type: ignore[arg-type]
+        else:
+            run = sort_into_workspace(args.path, workspace=workspace, **options)  # type: ignore[arg-type]
+            result = run.result
     written = write_results(result, args.out)
     own = [str(w.message) for w in caught if issubclass(w.category, SeedsortWarning)]
     reporter.sort_report(result, written=written, warnings=own, show=args.show, source=args.path)
+    if run is not None:
+        reporter.workspace_report(run, source=args.path)
     sys.stdout.flush()  # a closed pipe shows up here, inside the error boundary
     return EXIT_OK
+
+
+def _open_session(args: argparse.Namespace, reporter: Reporter, *, order: str, category: str | None, limit: int):  # type: ignore[no-untyped-def]
+    if args.path is None and args.workspace is None:
+        raise _UsageError("give the collection (as given to 'seedsort sort') or --workspace FILE")
+    with reporter.progress() as on_progress:
+        return open_review(
+            args.path, workspace=args.workspace, order=order, category=category, limit=limit, on_progress=on_progress
+        )
+
+
+def _run_review(args: argparse.Namespace, reporter: Reporter) -> int:
+    from ._review import run_review
+
+    order = "category" if args.category else args.order
+    if order == "category" and not args.category:
+        raise _UsageError("--order category needs --category NAME")
+    with _open_session(args, reporter, order=order, category=args.category, limit=args.limit) as session:
+        if not session.queue():
+            reporter.out.print(f"Nothing to review in this order ({order}); workspace: {session.location}")
+            return EXIT_OK
+        outcome = run_review(session, console=reporter.out, refresh_every=args.refresh_every, stdin=sys.stdin)
+        if outcome.pending_refresh:
+            session.refresh()
+        reporter.review_summary(outcome, session.location, args.path)
+    return EXIT_OK
+
+
+def _run_suggest(args: argparse.Namespace, reporter: Reporter) -> int:
+    with _open_session(args, reporter, order="suggested", category=None, limit=args.count) as session:
+        items = session.queue()
+        written = write_suggestions(items, args.out) if args.out else None
+        reporter.suggestions(items, written=written, location=session.location, source=args.path)
+    return EXIT_OK
+
+
+_RUNNERS = {"sort": _run_sort, "review": _run_review, "suggest": _run_suggest}
 
 
 class _UsageError(Exception):
@@ -186,7 +308,7 @@ def main(argv: Sequence[str] | None = None) -> int:
         return EXIT_USAGE
     reporter = Reporter(quiet=getattr(args, "quiet", False))
     try:
-        return _run_sort(args, reporter)
+        return _RUNNERS[args.command](args, reporter)
     except _UsageError as exc:
         print(f"seedsort: usage error: {exc} (see 'seedsort {args.command} --help')", file=sys.stderr)
         return EXIT_USAGE
@@ -202,7 +324,8 @@ def main(argv: Sequence[str] | None = None) -> int:
         os.dup2(devnull, sys.stdout.fileno())
         return EXIT_OK
     except KeyboardInterrupt:
-        print("seedsort: interrupted; nothing was written.", file=sys.stderr)
+        print("seedsort: interrupted; no results file was written (the workspace keeps every "
+              "decision saved before).", file=sys.stderr)
         return EXIT_INTERRUPTED
     except OSError as exc:
         if args.debug:

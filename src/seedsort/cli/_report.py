@@ -27,7 +27,10 @@ from rich.table import Table
 from rich.text import Text
 
 from .._progress import ProgressCallback
-from ..results import SortResult
+from ..results import STATUSES, SortResult
+from ..review import ReviewItem
+from ..workflow import WorkspaceRun
+from ._review import ReviewOutcome
 
 STAGE_NAMES = {
     "read": "reading files",
@@ -104,7 +107,7 @@ class Reporter:
     ) -> None:
         out = self.out
         n = len(result)
-        counts = {s: int((result.status == s).sum()) for s in ("seed", "assigned", "out_of_scope", "unreached", "empty")}
+        counts = {s: int((result.status == s).sum()) for s in STATUSES}
         out.print(
             Text.assemble(
                 ("seedsort", "bold"),
@@ -129,7 +132,7 @@ class Reporter:
             conf = "-" if math.isnan(row.mean_confidence) else f"{row.mean_confidence:.0%}"
             est = "-" if math.isnan(row.estimated_accuracy) else f"{row.estimated_accuracy:.0%}"
             table.add_row(row.category, str(row.documents), f"{row.share:.0%}", str(row.seeds), conf, est)
-        unassigned = counts["out_of_scope"] + counts["unreached"] + counts["empty"]
+        unassigned = n - counts["seed"] - counts["assigned"]
         if unassigned:
             table.add_row("(unassigned)", str(unassigned), f"{unassigned / max(1, n):.0%}", "", "", "")
         out.print(table)
@@ -162,6 +165,54 @@ class Reporter:
             out.print(Text(f"note: {note}", style="dim"))
         out.print(f"Results: {written} ({n} rows)")
 
+    def workspace_report(self, run: WorkspaceRun, *, source: str) -> None:
+        """Where the run was remembered, what changed since the last one, and what to do next."""
+        out = self.out
+        parts = [f"run {run.run_id}"]
+        if run.sync is not None:
+            sync = run.sync
+            parts.append(f"documents: {sync.new} new, {sync.changed} changed, {sync.unchanged} unchanged, {sync.gone} gone")
+        parts.append(f"{run.labels_added} label(s) added")
+        parts.append("vectors and graph reused" if run.graph_cached else "vectors and graph built and cached")
+        out.print(Text(f"Workspace: {run.workspace} ({'; '.join(parts)})"), overflow="fold")
+        if run.stale:
+            out.print(Text(
+                f"{len(run.stale)} labelled document(s) changed after they were labelled; their labels are kept, "
+                "check them first in the review:", style="bold"))
+            for doc in run.stale[:10]:
+                out.print(f"  {doc}")
+            if len(run.stale) > 10:
+                out.print(f"  ... and {len(run.stale) - 10} more")
+        out.print(Text(f"Next: seedsort review {source}   (check the doubtful ones; decisions are saved as you go)",
+                       style="dim"), overflow="fold")
+
+    def review_summary(self, outcome: ReviewOutcome, location: str, source: str | None) -> None:
+        kept = outcome.decided - outcome.undone
+        self.out.print(
+            f"Reviewed: {kept} decision(s) kept ({outcome.undone} undone), {outcome.skipped} skipped; "
+            f"labels re-spread {outcome.refreshes} time(s). Saved in {location}."
+        )
+        target = source or f"--workspace {location}"
+        self.out.print(Text(f"Next: seedsort sort {target}   (writes the results file with your corrections)",
+                            style="dim"), overflow="fold")
+
+    def suggestions(self, items: list[ReviewItem], *, written: Path | None, location: str, source: str | None) -> None:
+        out = self.out
+        if not items:
+            out.print("No documents to suggest: every document is a seed, empty or marked already.")
+            return
+        out.print(Text(f"Label these next ({len(items)}), most useful first:", style="bold"))
+        for number, item in enumerate(items, 1):
+            guess = item.category or "-"
+            out.print(Text.assemble(f"{number:>3}. ", (item.id, "bold"), f"  guess {guess}", (f"  ({item.reason})", "dim")),
+                      overflow="ellipsis", no_wrap=True)
+            out.print(Text("     " + " ".join(item.text.split())[:200]), overflow="ellipsis", no_wrap=True)
+        if written is not None:
+            out.print(f"Written: {written} (fill in the category column, then: seedsort sort ... --seeds {written})")
+        target = source or f"--workspace {location}"
+        out.print(Text(f"Or label them one by one: seedsort review {target} --order suggested", style="dim"),
+                  overflow="fold")
+
     def _assignment(self, result: SortResult, row: int) -> None:
         conf = float(result.confidence[row])
         runner = result.category_name(int(result.runner_up[row]))
@@ -184,6 +235,7 @@ class Reporter:
             ("out_of_scope", "Unassigned: fits none of the seeded categories well"),
             ("unreached", "Unassigned: no seed reaches these documents through the graph"),
             ("empty", "Unassigned: empty documents"),
+            ("no_category", "Unassigned: marked in a review as fitting no category"),
         ):
             rows = [i for i in range(len(result)) if result.status[i] == status]
             if status == "out_of_scope":
