@@ -166,8 +166,12 @@ class Workspace:
             self._create()
         else:
             self._check_header()
+            version = self._read_version()
             self._db = self._connect()
-            self._check_schema()
+            if version is None:
+                self._create()
+            elif version < SCHEMA_VERSION:
+                self._migrate(version)
 
     # -- opening -------------------------------------------------------------------------
 
@@ -199,33 +203,40 @@ class Workspace:
                 [("schema_version", str(SCHEMA_VERSION)), ("created_at", _now())],
             )
 
-    def _check_schema(self) -> None:
-        tables = {row[0] for row in self._db.execute("SELECT name FROM sqlite_master WHERE type='table'")}
+    def _read_version(self) -> int | None:
+        """The schema version, read without changing the file; None for an empty database.
+
+        Refuses (InputError) files that are not workspaces and workspaces of a newer schema
+        before anything is written, so such files are left exactly as they were.
+        """
+        try:
+            probe = sqlite3.connect(f"{self.path.resolve().as_uri()}?mode=ro", uri=True)
+            try:
+                tables = {row[0] for row in probe.execute("SELECT name FROM sqlite_master WHERE type='table'")}
+                row = probe.execute("SELECT value FROM meta WHERE key='schema_version'").fetchone() if "meta" in tables else None
+            finally:
+                probe.close()
+        except sqlite3.Error as exc:
+            raise InputError(f"Cannot read the workspace {self.path} ({exc}); choose another file with --workspace.") from exc
         if not tables:
-            self._create()
-            return
-        if "meta" not in tables:
-            self.close()
+            return None
+        if "meta" not in tables or row is None:
             raise InputError(f"{self.path} is an SQLite file but not a seedsort workspace; choose another file with --workspace.")
-        row = self._db.execute("SELECT value FROM meta WHERE key='schema_version'").fetchone()
-        version = int(row[0]) if row else 0
+        version = int(row[0])
         if version > SCHEMA_VERSION:
-            self.close()
             raise InputError(
                 f"The workspace {self.path} was written by a newer seedsort (schema {version}, this "
                 f"one reads up to {SCHEMA_VERSION}); upgrade seedsort. The file was left unchanged."
             )
-        if version < SCHEMA_VERSION:
-            self._migrate(version)
-
-    def _migrate(self, version: int) -> None:
-        steps = _MIGRATIONS.get(version)
-        if steps is None:
-            self.close()
+        if version < SCHEMA_VERSION and version not in _MIGRATIONS:
             raise InputError(
                 f"The workspace {self.path} has schema {version}, which this seedsort cannot migrate; "
                 "the file was left unchanged. Start a new workspace with --workspace."
             )
+        return version
+
+    def _migrate(self, version: int) -> None:
+        steps = _MIGRATIONS[version]
         with self._transaction():
             for statement in steps:
                 self._db.execute(statement)
