@@ -48,6 +48,29 @@ def test_classifier_on_seed_columns_equals_sklearn_on_all_columns(model_inputs) 
     np.testing.assert_array_equal(ours.argmax(axis=1), ref.predict(vectors))
 
 
+def test_unequal_seed_counts_are_weighted_as_sklearn_balanced(model_inputs) -> None:
+    """Reference: sklearn LogisticRegression(class_weight="balanced"), whose weights are
+    n_seeds / (n_classes * seeds_of_the_class), on seeds of unequal counts (6, 3, 3, 1)."""
+    vectors, _ = model_inputs
+    rows = np.array([0, 1, 2, 3, 4, 5, 10, 11, 12, 20, 21, 22, 30])
+    classes = np.array([0] * 6 + [1] * 3 + [2] * 3 + [3])
+    ours = classifier_probabilities(vectors, rows, classes, 4, 10.0)
+    ref = LogisticRegression(C=10.0, max_iter=2000, tol=1e-10, class_weight="balanced").fit(vectors[rows], classes)
+    np.testing.assert_allclose(ours, ref.predict_proba(vectors), atol=2e-3)
+
+
+def test_balanced_seed_matrix_changes_nothing_when_counts_are_equal(model_inputs) -> None:
+    """Spreading is linear in Y (Zhou et al. 2004, F* = (1-alpha)(I - alpha S)^-1 Y): scaling
+    every column by the same 1/3 scales the scores, not the probabilities."""
+    _, graph = model_inputs
+    n = graph.shape[0]
+    plain = spread_labels(graph, seed_matrix(SEED_ROWS, SEED_CLASSES, n, 4), alpha=0.99).scores
+    balanced = spread_labels(graph, seed_matrix(SEED_ROWS, SEED_CLASSES, n, 4, balanced=True), alpha=0.99).scores
+    np.testing.assert_allclose(balanced, plain / 3, rtol=1e-5, atol=1e-9)
+    # up to the solver tolerance (tol=1e-6 relative residual)
+    np.testing.assert_allclose(to_probabilities(balanced)[0], to_probabilities(plain)[0], atol=1e-5)
+
+
 def test_categories_without_seeds_get_zero_probability(model_inputs) -> None:
     """Common practice: a classifier cannot predict a class it never saw; one seen class takes all."""
     vectors, _ = model_inputs
@@ -65,7 +88,7 @@ def test_blend_is_the_weighted_geometric_mean_of_the_two_views(model_inputs, wei
     vectors, graph = model_inputs
     settings = ModelSettings(graph_weight=weight)
     pred = predict(vectors, graph, SEED_ROWS, SEED_CLASSES, 4, settings)
-    y = seed_matrix(SEED_ROWS, SEED_CLASSES, vectors.shape[0], 4)
+    y = seed_matrix(SEED_ROWS, SEED_CLASSES, vectors.shape[0], 4, balanced=True)
     graph_probs, mass = to_probabilities(spread_labels(graph, y, alpha=settings.alpha).scores)
     clf = classifier_probabilities(vectors, SEED_ROWS, SEED_CLASSES, 4, settings.classifier_strength)
     reached = mass > 0

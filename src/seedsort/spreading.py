@@ -70,10 +70,24 @@ def normalised_affinity(affinity: sp.spmatrix) -> sp.csr_matrix:
     return (d @ w @ d).tocsr()
 
 
-def seed_matrix(seed_rows: np.ndarray, seed_classes: np.ndarray, n: int, n_classes: int) -> np.ndarray:
-    """One-hot Y (n, c): row ``seed_rows[i]`` has a 1 in column ``seed_classes[i]``."""
+def seed_matrix(
+    seed_rows: np.ndarray, seed_classes: np.ndarray, n: int, n_classes: int, *, balanced: bool = False
+) -> np.ndarray:
+    """Y (n, c): row ``seed_rows[i]`` has a 1 in column ``seed_classes[i]`` (one-hot).
+
+    With ``balanced``, each column is divided by its number of seeds, so every category
+    injects the same total mass. Spreading is linear in Y, so with equal seed counts this
+    changes no probability; with unequal counts it stops the category with most seeds from
+    flooding the graph (at alpha near 1 the solution tends to the graph's stationary
+    component scaled by each column's total). Measured on a BANKING77 pile after ten
+    corrections: graph-only accuracy 23-30% one-hot, 82-84% balanced (tests/test_workflow.py).
+    """
     y = np.zeros((n, n_classes), dtype=np.float64)
-    y[np.asarray(seed_rows, dtype=np.int64), np.asarray(seed_classes, dtype=np.int64)] = 1.0
+    classes = np.asarray(seed_classes, dtype=np.int64)
+    y[np.asarray(seed_rows, dtype=np.int64), classes] = 1.0
+    if balanced:
+        counts = np.bincount(classes, minlength=n_classes).astype(np.float64)
+        y /= np.maximum(counts, 1.0)
     return y
 
 
