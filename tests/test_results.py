@@ -77,7 +77,7 @@ def test_format_from_option_or_extension(result: SortResult, tmp_path: Path) -> 
     with pytest.raises(InputError, match="end the name in .csv or .jsonl"):
         write_results(result, tmp_path / "out.xlsx")
     with pytest.raises(InputError, match="Unknown results format"):
-        write_results(result, tmp_path / "out.csv", fmt="parquet")
+        write_results(result, tmp_path / "out.csv", fmt="xlsx")
     with pytest.raises(InputError, match="does not exist"):
         write_results(result, tmp_path / "missing" / "out.csv")
     assert not (tmp_path / "out.xlsx").exists()

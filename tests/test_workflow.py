@@ -161,3 +161,24 @@ def test_review_orders(pile: tuple[Path, Path, dict[str, str]], tmp_path: Path) 
         assert members and all(item.category == "pin_blocked" for item in members)
         confidences = [item.candidates[0].probability for item in members]
         assert confidences == sorted(confidences)
+
+
+def test_a_quick_respread_with_unchanged_seeds_equals_the_full_run(pile: tuple[Path, Path, dict[str, str]]) -> None:
+    """The review's quick re-spread reuses the last run's weight, temperature, threshold and
+    seed checks instead of cross-checking again: with the same seeds it must reproduce the
+    full run exactly."""
+    from seedsort.seeds import read_labels_file, resolve_seeds
+    from seedsort.sorting import prepare, sort_documents
+    from seedsort.sources import read_collection
+
+    folder, labels, _ = pile
+    documents = list(read_collection(folder).documents)
+    seeds = resolve_seeds(documents, read_labels_file(labels), root=folder, labels_file=labels)
+    prepared = prepare(documents)
+    full = sort_documents(documents, seeds, prepared=prepared)
+    quick = sort_documents(documents, seeds, prepared=prepared, checked=full)
+    assert "cross-check" not in quick.settings["seconds"]
+    np.testing.assert_array_equal(quick.probabilities, full.probabilities)
+    for name in ("assigned", "status", "cross_checked", "possible_mislabel"):
+        np.testing.assert_array_equal(getattr(quick, name), getattr(full, name))
+    assert quick.estimated_accuracy == full.estimated_accuracy

@@ -53,12 +53,12 @@ def test_sync_counts_and_order(tmp_path: Path) -> None:
 def test_reimporting_a_seed_file_never_overrides_a_review(tmp_path: Path) -> None:
     with Workspace(tmp_path / "w.sqlite") as ws:
         ws.sync_documents(docs(("a", "x"), ("b", "y")))
-        assert ws.record_labels([("a", "red"), ("b", "blue")], "seed file") == 2
+        assert ws.record_labels([("a", "red"), ("b", "blue")], "seed_file") == 2
         ws.decide("a", "blue")
-        assert ws.record_labels([("a", "red"), ("b", "blue")], "seed file") == 0
+        assert ws.record_labels([("a", "red"), ("b", "blue")], "seed_file") == 0
         assert ws.current_labels()["a"].category == "blue"
         # The seed file now says something new: recorded, and being newest it stands.
-        assert ws.record_labels([("a", "green")], "seed file") == 1
+        assert ws.record_labels([("a", "green")], "seed_file") == 1
         assert ws.current_labels()["a"].category == "green"
         history = ws.history()
         assert [h.category for h in history if h.document_id == "a"] == ["red", "blue", "green"]
@@ -68,7 +68,7 @@ def test_reimporting_a_seed_file_never_overrides_a_review(tmp_path: Path) -> Non
 def test_undo_restores_what_stood_before_and_keeps_the_history(tmp_path: Path) -> None:
     with Workspace(tmp_path / "w.sqlite") as ws:
         ws.sync_documents(docs(("a", "x"), ("b", "y")))
-        ws.record_labels([("a", "red")], "seed file")
+        ws.record_labels([("a", "red")], "seed_file")
         start = ws.last_seq()
         ws.decide("a", "blue")
         ws.decide("b", None)  # fits no category
@@ -84,7 +84,7 @@ def test_undo_restores_what_stood_before_and_keeps_the_history(tmp_path: Path) -
 def test_changed_text_flags_the_label_and_keeps_it(tmp_path: Path) -> None:
     with Workspace(tmp_path / "w.sqlite") as ws:
         ws.sync_documents(docs(("a", "refund please"), ("b", "late boat")))
-        ws.record_labels([("a", "refunds"), ("b", "delays")], "seed file")
+        ws.record_labels([("a", "refunds"), ("b", "delays")], "seed_file")
         ws.sync_documents(docs(("a", "actually I lost my bag"), ("b", "late boat")))
         assert ws.stale_labels() == ["a"]
         assert ws.current_labels()["a"].category == "refunds"
@@ -107,8 +107,10 @@ def test_runs_are_recorded_with_their_assignments(tmp_path: Path) -> None:
     path = tmp_path / "w.sqlite"
     with Workspace(path) as ws:
         ws.sync_documents(docs(("a", "x"), ("b", "y")))
-        run = ws.record_run({"alpha": 0.99}, 0.8, [("a", "red", 0.9, 0.5, "seed"), ("b", None, float("nan"), None, "out_of_scope")])
+        rows = [("a", "red", 0.9, 0.5, "seed", "blue", True), ("b", None, float("nan"), None, "out_of_scope", None, False)]
+        run = ws.record_run({"alpha": 0.99}, 0.8, rows)
         last = ws.last_run()
+        assert sorted(ws.assignments(run)) == [rows[0], ("b", None, None, None, "out_of_scope", None, False)]
     assert last is not None and last.run_id == run
     assert last.counts == {"seed": 1, "out_of_scope": 1} and last.settings == {"alpha": 0.99}
     rows = sqlite3.connect(path).execute("SELECT document_id, category, confidence FROM assignments ORDER BY document_id").fetchall()
@@ -126,6 +128,45 @@ def test_a_newer_schema_is_refused_and_left_unchanged(tmp_path: Path) -> None:
     with pytest.raises(InputError, match="newer seedsort"):
         Workspace(path)
     assert sha(path) == before
+
+
+SCHEMA_1 = """
+CREATE TABLE meta (key TEXT PRIMARY KEY, value TEXT NOT NULL);
+CREATE TABLE documents (id TEXT PRIMARY KEY, source TEXT NOT NULL, content_hash TEXT NOT NULL, text TEXT NOT NULL,
+    position INTEGER NOT NULL, present INTEGER NOT NULL DEFAULT 1, first_seen TEXT NOT NULL, changed_at TEXT);
+CREATE TABLE decisions (seq INTEGER PRIMARY KEY AUTOINCREMENT, document_id TEXT NOT NULL,
+    action TEXT NOT NULL CHECK (action IN ('label', 'withdraw')), category TEXT, origin TEXT NOT NULL,
+    content_hash TEXT, decided_at TEXT NOT NULL, undoes INTEGER REFERENCES decisions(seq));
+CREATE INDEX decisions_by_document ON decisions(document_id, seq);
+CREATE TABLE runs (run_id INTEGER PRIMARY KEY AUTOINCREMENT, finished_at TEXT NOT NULL, settings TEXT NOT NULL,
+    estimated_accuracy REAL, counts TEXT NOT NULL, documents INTEGER NOT NULL);
+CREATE TABLE assignments (run_id INTEGER NOT NULL REFERENCES runs(run_id), document_id TEXT NOT NULL, category TEXT,
+    confidence REAL, margin REAL, status TEXT NOT NULL, PRIMARY KEY (run_id, document_id));
+CREATE TABLE cache (key TEXT PRIMARY KEY, kind TEXT NOT NULL, created_at TEXT NOT NULL, payload BLOB NOT NULL);
+PRAGMA application_id=1397048644;
+INSERT INTO meta VALUES ('schema_version', '1');
+INSERT INTO documents VALUES ('a', 'a', 'h', 'text', 0, 1, '2026-12-01T00:00:00+00:00', NULL);
+INSERT INTO decisions(document_id, action, category, origin, content_hash, decided_at) VALUES ('a', 'label', 'red', 'seed file', 'h', '2026-12-01T00:00:00+00:00');
+INSERT INTO runs VALUES (1, '2026-12-01T00:00:00+00:00', '{}', 0.5, '{}', 1);
+INSERT INTO assignments VALUES (1, 'a', 'red', 0.9, 0.1, 'seed');
+"""
+
+
+def test_a_schema_1_workspace_is_migrated_and_keeps_everything(tmp_path: Path) -> None:
+    """The schema of the first seedsort workspace (as released in commit 0ff2384) is upgraded
+    in place: decisions, documents and runs kept, the new per-seed columns added."""
+    path = tmp_path / "w.sqlite"
+    db = sqlite3.connect(path)
+    db.executescript(SCHEMA_1)
+    db.close()
+    with Workspace(path) as ws:
+        assert ws.get_meta("schema_version") == str(SCHEMA_VERSION)
+        assert ws.current_labels()["a"].category == "red"
+        assert ws.current_labels()["a"].origin == "seed_file"
+        assert ws.assignments(1) == [("a", "red", 0.9, 0.1, "seed", None, False)]
+        assert [d.id for d in ws.documents()] == ["a"]
+    db = sqlite3.connect(path)
+    assert db.execute("PRAGMA integrity_check").fetchone() == ("ok",)
 
 
 def test_an_older_unknown_schema_is_refused_and_left_unchanged(tmp_path: Path) -> None:

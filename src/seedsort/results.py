@@ -1,4 +1,4 @@
-"""Assignments: the result of a run, and its CSV / JSON Lines writers.
+"""Assignments: the result of a run, and its CSV / JSON Lines / Parquet writers.
 
 One row per document. ``status`` says how the row should be read:
 
@@ -9,6 +9,7 @@ One row per document. ``status`` says how the row should be read:
 ``unreached``   no seed reaches it through the neighbour graph (or only with near-zero
                 mass): left without a category rather than forced into one.
 ``empty``       the document has no text.
+``no_category`` a reviewer marked it as fitting no category (see :mod:`seedsort.workflow`).
 """
 
 from __future__ import annotations
@@ -29,8 +30,8 @@ from .errors import InputError
 from .sources import SkippedFile
 
 NEAREST_SEEDS = 3
-STATUSES = ("seed", "assigned", "out_of_scope", "unreached", "empty")
-RESULT_FORMATS = ("csv", "jsonl")
+STATUSES = ("seed", "assigned", "out_of_scope", "unreached", "empty", "no_category")
+RESULT_FORMATS = ("csv", "jsonl", "parquet")
 
 
 @dataclass(frozen=True, slots=True)
@@ -188,39 +189,51 @@ CSV_COLUMNS = [
 
 
 def result_format(path: str | os.PathLike[str], fmt: str | None = None) -> str:
-    """The output format: given, or from the file extension (.csv, .jsonl/.ndjson)."""
+    """The output format: given, or from the file extension (.csv, .jsonl/.ndjson, .parquet)."""
     if fmt:
         if fmt not in RESULT_FORMATS:
-            raise InputError(f"Unknown results format {fmt!r}; choose csv or jsonl.")
+            raise InputError(f"Unknown results format {fmt!r}; choose csv, jsonl or parquet.")
         return fmt
     suffix = Path(path).suffix.lower()
     if suffix == ".csv":
         return "csv"
     if suffix in (".jsonl", ".ndjson"):
         return "jsonl"
-    raise InputError(f"Cannot tell the results format of {path}; end the name in .csv or .jsonl.")
+    if suffix == ".parquet":
+        return "parquet"
+    raise InputError(f"Cannot tell the results format of {path}; end the name in .csv or .jsonl, or .parquet.")
 
 
 def write_results(result: SortResult, path: str | os.PathLike[str], fmt: str | None = None) -> Path:
     """Write the results atomically (a temporary file renamed into place).
 
+    Parquet (typed columns, see :func:`seedsort.export.results_table`) needs pyarrow.
     Returns the path written.
     """
+    # Imported here: export builds on this module, and pyarrow is loaded only for Parquet.
+    from .export import require_parquet, results_table, write_parquet
+
     path = Path(path)
     fmt = result_format(path, fmt)
+    if fmt == "parquet":
+        require_parquet()
     if path.is_dir():
-        raise InputError(f"Results path {path} is a folder; give a file name ending in .csv or .jsonl.")
+        raise InputError(f"Results path {path} is a folder; give a file name ending in .csv, .jsonl or .parquet.")
     directory = path.parent if str(path.parent) else Path(".")
     if not directory.is_dir():
         raise InputError(f"Folder {directory} for the results does not exist; create it first.")
     fd, tmp = tempfile.mkstemp(prefix=".seedsort-", suffix=".part", dir=directory)
     try:
-        with os.fdopen(fd, "w", encoding="utf-8", newline="") as handle:
-            if fmt == "csv":
-                result.to_frame().to_csv(handle, index=False)
-            else:
-                for rec in result.records():
-                    handle.write(json.dumps(rec, ensure_ascii=False) + "\n")
+        if fmt == "parquet":
+            os.close(fd)
+            write_parquet(results_table(result), tmp)
+        else:
+            with os.fdopen(fd, "w", encoding="utf-8", newline="") as handle:
+                if fmt == "csv":
+                    result.to_frame().to_csv(handle, index=False)
+                else:
+                    for rec in result.records():
+                        handle.write(json.dumps(rec, ensure_ascii=False) + "\n")
         os.replace(tmp, path)
     except BaseException:
         Path(tmp).unlink(missing_ok=True)

@@ -20,6 +20,7 @@ import scipy.sparse as sp
 
 from ._progress import ProgressCallback, no_progress
 from .combine import (
+    DEFAULT_GRAPH_WEIGHT,
     ModelSettings,
     Views,
     apply_temperature,
@@ -153,6 +154,65 @@ def _possible_mislabels(held_out: np.ndarray, given: np.ndarray) -> np.ndarray:
     return checked & (probs.argmax(axis=1) != given) & (probs.max(axis=1) >= MISLABEL_RATIO * given_p)
 
 
+@dataclass(frozen=True)
+class SeedChecks:
+    """What a quick re-spread reuses from an earlier run (a :class:`SortResult` has all of it).
+
+    Attributes
+    ----------
+    ids, categories:
+        The earlier run's documents and categories.
+    seed_label, cross_checked, possible_mislabel:
+        Per document, as in :class:`SortResult`.
+    settings:
+        Needs ``graph_weight``, ``temperature`` and ``out_of_scope_threshold``.
+    estimated_accuracy, estimated_category_accuracy:
+        As in :class:`SortResult`.
+    """
+
+    ids: tuple[str, ...]
+    categories: tuple[str, ...]
+    seed_label: np.ndarray
+    cross_checked: np.ndarray
+    possible_mislabel: np.ndarray
+    settings: dict[str, object]
+    estimated_accuracy: float | None
+    estimated_category_accuracy: np.ndarray
+
+
+def _quick_result(
+    documents: Sequence[Document],
+    seeds: SeedSet,
+    settings: SortSettings,
+    views: Views,
+    prepared: Prepared,
+    checked: SortResult | SeedChecks,
+    timings: dict[str, float],
+    collection: Collection | None,
+) -> SortResult:
+    """The end of :func:`sort_documents` with the seed checks of an earlier result."""
+    record = checked.settings
+    same_categories = checked.categories == seeds.categories
+    earlier = {doc: i for i, doc in enumerate(checked.ids)} if same_categories else {}
+    seed_check = np.full(len(seeds), -1, dtype=np.int64)
+    mislabel = np.zeros(len(seeds), dtype=bool)
+    for k, (row, label) in enumerate(zip(seeds.rows, seeds.classes)):
+        i = earlier.get(documents[int(row)].id)
+        if i is not None and checked.seed_label[i] == label:
+            seed_check[k], mislabel[k] = checked.cross_checked[i], checked.possible_mislabel[i]
+    threshold = record.get("out_of_scope_threshold")
+    return _finish(
+        documents, seeds, settings, views, prepared, timings, collection,
+        weight=float(record.get("graph_weight", DEFAULT_GRAPH_WEIGHT)),
+        temperature=float(record.get("temperature", 1.0)),
+        threshold=None if threshold is None else float(threshold),  # type: ignore[arg-type]
+        seed_check=seed_check,
+        mislabel=mislabel,
+        estimate=checked.estimated_accuracy if same_categories else None,
+        per_category=checked.estimated_category_accuracy if same_categories else np.full(len(seeds.categories), np.nan),
+    )
+
+
 def sort_documents(
     documents: Sequence[Document],
     seeds: SeedSet,
@@ -161,6 +221,7 @@ def sort_documents(
     on_progress: ProgressCallback | None = None,
     collection: Collection | None = None,
     prepared: Prepared | None = None,
+    checked: SortResult | SeedChecks | None = None,
 ) -> SortResult:
     """Categorise every document from the seeds.
 
@@ -177,6 +238,12 @@ def sort_documents(
     prepared:
         The output of :func:`prepare` for these documents and settings, to skip rebuilding
         the vectors and graph (e.g. after adding seeds).
+    checked:
+        A quick re-spread (what a review does every few decisions): an earlier result on the
+        same documents whose seed checks are reused: its graph weight, temperature,
+        out-of-scope threshold and accuracy estimate are kept, seeds it checked keep their
+        check, and no cross-check runs (it costs five more spreads and fits). The next full
+        run checks every seed again.
     """
     settings = settings or SortSettings()
     progress = on_progress or no_progress
@@ -201,6 +268,8 @@ def sort_documents(
 
     started = time.perf_counter()
     order_key = np.array([documents[int(r)].content_hash for r in seed_rows], dtype=object)
+    if checked is not None:
+        return _quick_result(documents, seeds, settings, views, prepared, checked, timings, collection)
     if settings.cross_check_folds >= 2:
         progress("cross-check", 0, 1)
         held_views = cross_check(
@@ -218,14 +287,68 @@ def sort_documents(
     held_out[seed_order] = held_out_by_id
     timings["cross-check"] = time.perf_counter() - started
 
+    # Confidences are rescaled so that, on the held-out seeds, they match how often the
+    # model was right (one temperature; the ranking of categories never changes).
+    temperature = fit_temperature(held_out_by_id, seed_classes)
+    checked_rows = ~np.isnan(held_out).any(axis=1)
+    seed_check = np.where(checked_rows, np.nan_to_num(held_out, nan=-1.0).argmax(axis=1), -1)
+    blended = views.blend(weight)
+
+    # Out-of-scope: score every document and every held-out seed on the same scale, flag
+    # documents above the chosen quantile of the held-out seeds.
+    degree = degree_of(prepared.affinity)
+    components = scope_components(blended, views.mass, degree)
+    held_components = scope_components(
+        np.nan_to_num(held_out_by_id, nan=1.0), held_views.mass, degree[seed_rows]
+    )
+    held_components[np.isnan(held_out_by_id).any(axis=1)] = np.nan
+    threshold = (
+        scope_threshold(out_of_scope_scores(held_components, components), settings.out_of_scope_quantile)
+        if settings.out_of_scope_quantile is not None
+        else None
+    )
+    return _finish(
+        documents, seeds, settings, views, prepared, timings, collection,
+        weight=weight,
+        temperature=temperature,
+        threshold=threshold,
+        seed_check=seed_check,
+        mislabel=_possible_mislabels(held_out, seeds.classes),
+        estimate=float(np.mean(seed_check[checked_rows] == seeds.classes[checked_rows])) if checked_rows.any() else None,
+        per_category=per_category_accuracy(seeds.classes[checked_rows], seed_check[checked_rows], c),
+    )
+
+
+def _finish(
+    documents: Sequence[Document],
+    seeds: SeedSet,
+    settings: SortSettings,
+    views: Views,
+    prepared: Prepared,
+    timings: dict[str, float],
+    collection: Collection | None,
+    *,
+    weight: float,
+    temperature: float,
+    threshold: float | None,
+    seed_check: np.ndarray,
+    mislabel: np.ndarray,
+    estimate: float | None,
+    per_category: np.ndarray,
+) -> SortResult:
+    """Blend, calibrate, decide each document's status and assemble the result.
+
+    ``seed_check`` and ``mislabel`` are per seed, in ``seeds.rows`` order: the category a
+    model without the seed predicts (-1 when unchecked), and whether it clearly disputes it.
+    """
+    n, c = len(documents), len(seeds.categories)
+    vectors, affinity = prepared.vectors, prepared.affinity
+    seed_rows = seeds.rows[np.argsort(np.array([documents[int(r)].id for r in seeds.rows], dtype=object), kind="stable")]
     started = time.perf_counter()
     nearest, nearest_sim = nearest_rows(vectors, seed_rows, NEAREST_SEEDS)  # ties go to the smaller id
     timings["nearest seeds"] = time.perf_counter() - started
 
-    # Confidences are rescaled so that, on the held-out seeds, they match how often the
-    # model was right (one temperature; the ranking of categories never changes).
     blended = views.blend(weight)
-    temperature = fit_temperature(held_out_by_id, seed_classes)
     probs = apply_temperature(blended, temperature)
     top2 = np.argsort(-probs, axis=1, kind="stable")[:, :2] if c >= 2 else np.zeros((n, 2), dtype=np.int64)
     best, second = top2[:, 0], top2[:, 1]
@@ -235,27 +358,14 @@ def sort_documents(
 
     seed_label = np.full(n, -1, dtype=np.int64)
     seed_label[seeds.rows] = seeds.classes
-    checked = ~np.isnan(held_out).any(axis=1)
-    held_best = np.where(checked, np.nan_to_num(held_out, nan=-1.0).argmax(axis=1), -1)
     cross_checked = np.full(n, -1, dtype=np.int64)
-    cross_checked[seeds.rows] = held_best
-    mislabel = np.zeros(n, dtype=bool)
-    mislabel[seeds.rows] = _possible_mislabels(held_out, seeds.classes)
+    cross_checked[seeds.rows] = seed_check
+    possible_mislabel = np.zeros(n, dtype=bool)
+    possible_mislabel[seeds.rows] = mislabel
 
-    # Out-of-scope: score every document and every held-out seed on the same scale, flag
-    # documents above the chosen quantile of the held-out seeds.
     degree = degree_of(affinity)
     components = scope_components(blended, views.mass, degree)
-    held_components = scope_components(
-        np.nan_to_num(held_out_by_id, nan=1.0), held_views.mass, degree[seed_rows]
-    )
-    held_components[np.isnan(held_out_by_id).any(axis=1)] = np.nan
     scope = out_of_scope_scores(components, components)
-    threshold = (
-        scope_threshold(out_of_scope_scores(held_components, components), settings.out_of_scope_quantile)
-        if settings.out_of_scope_quantile is not None
-        else None
-    )
 
     reached = seed_reach(affinity, seeds.rows)
     mass = views.mass
@@ -279,19 +389,18 @@ def sort_documents(
     confidence[unassigned] = np.nan
     margin = np.where(unassigned, np.nan, margin)
 
-    estimate = float(np.mean(held_best[checked] == seeds.classes[checked])) if checked.any() else None
-    per_category = per_category_accuracy(seeds.classes[checked], held_best[checked], c)
-
     record = {
         "vectors": settings.vectors.describe(),
         "neighbours": settings.neighbours,
         **{key: value for key, value in asdict(settings.model).items()},
         "graph_weight": weight,
         "graph_weight_tuned": settings.model.graph_weight is None,
-        "out_of_scope_threshold": None if threshold is None else round(threshold, 4),
+        "feature_smoothing": settings.model.smoothing_steps(vectors),
+        # Unrounded: a quick re-spread reuses them and must reproduce this run exactly.
+        "out_of_scope_threshold": None if threshold is None else float(threshold),
         "out_of_scope_quantile": settings.out_of_scope_quantile,
         "spread_iterations": views.spread_iterations,
-        "temperature": round(temperature, 4),
+        "temperature": float(temperature),
         "seconds": {key: round(value, 2) for key, value in timings.items()},
     }
     return SortResult(
@@ -307,7 +416,7 @@ def sort_documents(
         status=status.astype(str),
         seed_label=seed_label,
         cross_checked=cross_checked,
-        possible_mislabel=mislabel,
+        possible_mislabel=possible_mislabel,
         nearest_seed_rows=nearest,
         nearest_seed_similarity=nearest_sim,
         estimated_accuracy=estimate,

@@ -19,6 +19,7 @@ import os
 import tempfile
 import time
 from collections.abc import Sequence
+from datetime import datetime
 from dataclasses import asdict, dataclass, fields, replace
 from pathlib import Path
 from typing import Any
@@ -29,13 +30,14 @@ import pandas as pd
 from ._progress import ProgressCallback, no_progress
 from .combine import ModelSettings
 from .errors import InputError
+from .export import LabelEvent
 from .results import SortResult
 from .review import Candidate, NearbySeed, ReviewItem
 from .seeds import match_references, seed_set
-from .sorting import Prepared, SortSettings, _prepared_key, gather, prepare, sort_documents
+from .sorting import Prepared, SeedChecks, SortSettings, _prepared_key, gather, prepare, sort_documents
 from .sources import Collection, Document, TableColumns
 from .vectors import VectorSettings
-from .workspace import SyncCounts, Workspace, default_workspace_path
+from .workspace import RunRecord, SyncCounts, Workspace, default_workspace_path
 
 #: Status of a document a reviewer marked as fitting no category.
 NO_CATEGORY = "no_category"
@@ -132,27 +134,60 @@ def _run(
     prepared: Prepared,
     collection: Collection | None,
     on_progress: ProgressCallback | None,
-) -> tuple[SortResult, int]:
-    """One run with the workspace's standing labels; stores it and returns (result, run id)."""
+    *,
+    checked: SortResult | SeedChecks | None = None,
+    record: bool = True,
+) -> tuple[SortResult, int | None]:
+    """One run with the workspace's standing labels; stores it (unless ``record`` is false).
+
+    With ``checked``, a quick re-spread that reuses those seed checks (see
+    :func:`seedsort.sorting.sort_documents`). Returns (result, run id or None).
+    """
     row_of = {doc.id: row for row, doc in enumerate(documents)}
     labels = {doc: d.category for doc, d in workspace.current_labels().items() if doc in row_of}
     chosen = {row_of[doc]: cat for doc, cat in labels.items() if cat is not None}
     rejected = np.array(sorted(row_of[doc] for doc, cat in labels.items() if cat is None), dtype=np.int64)
     seeds = seed_set(documents, chosen)
-    result = sort_documents(documents, seeds, settings, on_progress=on_progress, collection=collection, prepared=prepared)
+    result = sort_documents(
+        documents, seeds, settings, on_progress=on_progress, collection=collection, prepared=prepared, checked=checked
+    )
     if rejected.size:
         result = _mark_no_category(result, rejected)
+    if not record:
+        return result, None
     names = result.categories
+
+    def name(index: int) -> str | None:
+        return names[index] if index >= 0 else None
+
+    per_category = [None if math.isnan(x) else float(x) for x in result.estimated_category_accuracy]
     run_id = workspace.record_run(
-        {**result.settings, "sort_settings": settings_to_dict(settings)},
+        {**result.settings, "categories": list(names), "estimated_category_accuracy": per_category,
+         "quick": checked is not None, "sort_settings": settings_to_dict(settings)},
         result.estimated_accuracy,
         (
-            (result.ids[i], names[a] if (a := int(result.assigned[i])) >= 0 else None,
-             float(result.confidence[i]), float(result.margin[i]), str(result.status[i]))
+            (result.ids[i], name(int(result.assigned[i])), float(result.confidence[i]), float(result.margin[i]),
+             str(result.status[i]), name(int(result.cross_checked[i])), bool(result.possible_mislabel[i]))
             for i in range(len(result))
         ),
     )
     return result, run_id
+
+
+def _stored_checks(workspace: Workspace, run: RunRecord) -> SeedChecks:
+    """The seed checks of a recorded run, for a quick re-spread without cross-checking again."""
+    names = tuple(run.settings.get("categories", ()))  # type: ignore[arg-type]
+    index = {name: i for i, name in enumerate(names)}
+    rows = workspace.assignments(run.run_id)
+    ids = tuple(row[0] for row in rows)
+    seed_label = np.array([index.get(row[1], -1) if row[4] == "seed" else -1 for row in rows], dtype=np.int64)
+    cross_checked = np.array([index.get(row[5], -1) if row[5] else -1 for row in rows], dtype=np.int64)
+    per_category = [np.nan if x is None else x for x in run.settings.get("estimated_category_accuracy", [])]  # type: ignore[union-attr]
+    return SeedChecks(
+        ids=ids, categories=names, seed_label=seed_label, cross_checked=cross_checked,
+        possible_mislabel=np.array([row[6] for row in rows], dtype=bool), settings=run.settings,
+        estimated_accuracy=run.estimated_accuracy, estimated_category_accuracy=np.array(per_category, dtype=float),
+    )
 
 
 def _mark_no_category(result: SortResult, rows: np.ndarray) -> SortResult:
@@ -194,11 +229,12 @@ def sort_into_workspace(
     location = Path(workspace) if workspace is not None else default_workspace_path(path)
     with Workspace(location) as store:
         sync = store.sync_documents(documents)
+        store.set_meta("collection_root", str(gathered.collection.root))
         added = 0
         for pairs, origin, labels_file in (
-            (gathered.label_column, "label column", None),
-            (gathered.examples, "examples folder", None),
-            (gathered.seed_file, "seed file", seeds_file),
+            (gathered.label_column, "label_column", None),
+            (gathered.examples, "examples_folder", None),
+            (gathered.seed_file, "seed_file", seeds_file),
         ):
             if pairs:
                 rows = match_references(documents, pairs, root=root, labels_file=labels_file)
@@ -260,7 +296,8 @@ class WorkspaceReview:
         self._refreshed_at = self._start
         self._decided: set[str] = set()
         self.runs = 0
-        self._result = self._rerun(record=False)
+        # Opening re-spreads with the last run's seed checks: a full cross-check is for 'sort'.
+        self._result = self._rerun(record=False, checked=_stored_checks(workspace, last))
         if order == "category" and category not in self._result.categories:
             known = ", ".join(self._result.categories)
             raise InputError(f"No category {category!r} in this workspace; the categories are: {known}.")
@@ -298,25 +335,19 @@ class WorkspaceReview:
 
     def refresh(self) -> None:
         if self._store.last_seq() != self._refreshed_at:
-            self._result = self._rerun(record=True)
+            self._result = self._rerun(record=True, checked=self._result)
             self._refreshed_at = self._store.last_seq()
         self._queue = self._build_queue()
 
     # -- internals -----------------------------------------------------------------------
 
-    def _rerun(self, *, record: bool) -> SortResult:
+    def _rerun(self, *, record: bool, checked: SortResult | SeedChecks) -> SortResult:
         started = time.perf_counter()
-        if record:
-            result, _ = _run(self._store, self._documents, self._settings, self._prepared, None, self._progress)
-            self.runs += 1
-        else:
-            row_of = {doc.id: row for row, doc in enumerate(self._documents)}
-            labels = {d: x.category for d, x in self._store.current_labels().items() if d in row_of}
-            seeds = seed_set(self._documents, {row_of[d]: c for d, c in labels.items() if c is not None})
-            result = sort_documents(self._documents, seeds, self._settings, prepared=self._prepared)
-            rejected = np.array(sorted(row_of[d] for d, c in labels.items() if c is None), dtype=np.int64)
-            if rejected.size:
-                result = _mark_no_category(result, rejected)
+        result, _ = _run(
+            self._store, self._documents, self._settings, self._prepared, None, self._progress,
+            checked=checked, record=record,
+        )
+        self.runs += int(record)
         self.last_refresh_seconds = time.perf_counter() - started
         self._row_of = {d: i for i, d in enumerate(result.ids)}
         return result
@@ -400,6 +431,55 @@ class WorkspaceReview:
         )
 
 
+@dataclass(frozen=True)
+class WorkspaceState:
+    """A workspace's current state for export: the latest assignments with every decision so far.
+
+    Attributes
+    ----------
+    result:
+        Re-spread with the standing labels and the last run's seed checks (no cross-check).
+    root:
+        The folder the last run read.
+    texts:
+        Document id -> text, as the workspace holds them.
+    history:
+        Every label event, oldest first.
+    """
+
+    result: SortResult
+    root: str
+    texts: dict[str, str]
+    history: list[LabelEvent]
+
+
+def current_state(
+    collection: str | os.PathLike[str] | None = None,
+    *,
+    workspace: str | os.PathLike[str] | None = None,
+    on_progress: ProgressCallback | None = None,
+) -> WorkspaceState:
+    """The latest state of a collection's workspace (or the one given), for export.
+
+    Raises
+    ------
+    InputError
+        when there is no workspace or no run in it yet.
+    """
+    with open_review(collection, workspace=workspace, limit=0, on_progress=on_progress) as session:
+        store = session._store
+        root = store.get_meta("collection_root") or ""
+        history = [
+            LabelEvent(
+                document=event.document_id, category=event.category, origin=event.origin,
+                time=datetime.fromisoformat(event.decided_at), superseded=event.superseded, action=event.action,
+            )
+            for event in store.history()
+        ]
+        texts = {doc.id: doc.text for doc in session._documents}
+        return WorkspaceState(replace(session.result, root=root), root, texts, history)
+
+
 def write_suggestions(items: Sequence[ReviewItem], path: str | os.PathLike[str]) -> Path:
     """Write suggested documents as a labels CSV whose ``category`` column is left to fill in.
 
@@ -462,6 +542,8 @@ def open_review(
 __all__ = [
     "NO_CATEGORY",
     "WorkspaceReview",
+    "WorkspaceState",
+    "current_state",
     "WorkspaceRun",
     "cached_prepare",
     "open_review",

@@ -38,11 +38,11 @@ import scipy.sparse as sp
 from .errors import InputError
 from .sources import Document
 
-SCHEMA_VERSION = 1
+SCHEMA_VERSION = 2
 APPLICATION_ID = 0x53454544  # "SEED": marks the file as a seedsort workspace
 WORKSPACE_SUFFIX = ".seedsort.sqlite"
 #: Where a label can come from.
-ORIGINS = ("seed file", "examples folder", "label column", "review", "import")
+ORIGINS = ("seed_file", "examples_folder", "label_column", "review", "import")
 
 _SCHEMA = """
 CREATE TABLE meta (key TEXT PRIMARY KEY, value TEXT NOT NULL);
@@ -82,6 +82,8 @@ CREATE TABLE assignments (
     confidence REAL,
     margin REAL,
     status TEXT NOT NULL,
+    seed_check TEXT,
+    possible_mislabel INTEGER NOT NULL DEFAULT 0,
     PRIMARY KEY (run_id, document_id)
 );
 CREATE TABLE cache (key TEXT PRIMARY KEY, kind TEXT NOT NULL, created_at TEXT NOT NULL, payload BLOB NOT NULL);
@@ -264,6 +266,14 @@ class Workspace:
     def __exit__(self, *exc: object) -> None:
         self.close()
 
+    def get_meta(self, key: str) -> str | None:
+        row = self._db.execute("SELECT value FROM meta WHERE key=?", (key,)).fetchone()
+        return None if row is None else str(row[0])
+
+    def set_meta(self, key: str, value: str) -> None:
+        with self._transaction() as db:
+            db.execute("INSERT INTO meta(key, value) VALUES (?, ?) ON CONFLICT(key) DO UPDATE SET value=excluded.value", (key, value))
+
     # -- documents -----------------------------------------------------------------------
 
     def sync_documents(self, documents: Sequence[Document]) -> SyncCounts:
@@ -429,12 +439,17 @@ class Workspace:
         self,
         settings: dict[str, object],
         estimated_accuracy: float | None,
-        assignments: Iterable[tuple[str, str | None, float | None, float | None, str]],
+        assignments: Iterable[tuple[str, str | None, float | None, float | None, str, str | None, bool]],
     ) -> int:
-        """Store a run and its per-document assignments (id, category, confidence, margin, status)."""
+        """Store a run and its per-document assignments.
+
+        Each assignment is (id, category, confidence, margin, status, seed check, possible
+        mislabel): the last two say, for a seed, which category a model that did not see it
+        predicted, and whether it clearly disputes the label.
+        """
         rows = [
-            (doc, category, _finite(confidence), _finite(margin), status)
-            for doc, category, confidence, margin, status in assignments
+            (doc, category, _finite(confidence), _finite(margin), status, check, int(bool(mislabel)))
+            for doc, category, confidence, margin, status, check, mislabel in assignments
         ]
         counts: dict[str, int] = {}
         for row in rows:
@@ -446,7 +461,8 @@ class Workspace:
             )
             run_id = int(cursor.lastrowid or 0)
             db.executemany(
-                "INSERT INTO assignments(run_id, document_id, category, confidence, margin, status) VALUES (?, ?, ?, ?, ?, ?)",
+                "INSERT INTO assignments(run_id, document_id, category, confidence, margin, status, seed_check, "
+                "possible_mislabel) VALUES (?, ?, ?, ?, ?, ?, ?, ?)",
                 [(run_id, *row) for row in rows],
             )
         return run_id
@@ -456,6 +472,15 @@ class Workspace:
             "SELECT run_id, finished_at, settings, estimated_accuracy, counts, documents FROM runs ORDER BY run_id"
         )
         return [RunRecord(r, f, json.loads(s), a, json.loads(c), n) for r, f, s, a, c, n in rows]
+
+    def assignments(self, run_id: int) -> list[tuple[str, str | None, float | None, float | None, str, str | None, bool]]:
+        """A run's rows as given to :meth:`record_run`."""
+        rows = self._db.execute(
+            "SELECT document_id, category, confidence, margin, status, seed_check, possible_mislabel "
+            "FROM assignments WHERE run_id=?",
+            (run_id,),
+        )
+        return [(d, c, f, m, s, k, bool(x)) for d, c, f, m, s, k, x in rows]
 
     def last_run(self) -> RunRecord | None:
         runs = self._db.execute("SELECT MAX(run_id) FROM runs").fetchone()[0]
@@ -511,5 +536,12 @@ def _unpack(payload: bytes) -> dict[str, np.ndarray | sp.csr_matrix]:
     return out
 
 
-#: Statements that bring a workspace of schema N up to SCHEMA_VERSION (none older exists yet).
-_MIGRATIONS: dict[int, tuple[str, ...]] = {}
+#: Statements that bring a workspace of schema N up to SCHEMA_VERSION, in one transaction.
+#: Schema 1 had no per-seed check in ``assignments`` and spelled origins with spaces.
+_MIGRATIONS: dict[int, tuple[str, ...]] = {
+    1: (
+        "UPDATE decisions SET origin = replace(origin, ' ', '_')",
+        "ALTER TABLE assignments ADD COLUMN seed_check TEXT",
+        "ALTER TABLE assignments ADD COLUMN possible_mislabel INTEGER NOT NULL DEFAULT 0",
+    ),
+}

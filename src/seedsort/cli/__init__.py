@@ -57,6 +57,14 @@ Run 'seedsort sort' on the collection first; afterwards run it again (no --seeds
 needed) to write the results file with your corrections.
 """
 
+EXPORT_EXAMPLES = """\
+examples:
+  seedsort export corpora_demo/documents --out results.parquet
+  seedsort export corpora_demo/documents --history labels-history.csv
+  seedsort export corpora_demo/documents --copy-to sorted/ --dry-run
+  seedsort export corpora_demo/documents --copy-to sorted/
+"""
+
 SUGGEST_EXAMPLES = """\
 examples:
   seedsort suggest corpora_demo/documents
@@ -196,6 +204,25 @@ def build_parser() -> argparse.ArgumentParser:
     suggest.add_argument("--out", metavar="FILE",
                          help="also write them as a labels CSV with an empty category column to fill in")
     suggest.add_argument("--debug", action="store_true", help="show tracebacks on errors")
+
+    export = commands.add_parser(
+        "export",
+        help="write the latest results, the label history, or copies sorted into category folders",
+        description=(
+            "Export a workspace's current state: every document's category with all decisions "
+            "so far (as CSV, JSON Lines or Parquet), the full label history, and/or a copy of "
+            "each categorised document in one folder per category (copies only: sources are "
+            "never moved or changed, nothing existing is overwritten)."
+        ),
+        epilog=EXPORT_EXAMPLES,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    _workspace_arguments(export)
+    export.add_argument("--out", metavar="FILE", help="results file: .csv, .jsonl or .parquet (Parquet needs seedsort[parquet])")
+    export.add_argument("--history", metavar="FILE", help="label history file: .csv, .jsonl or .parquet")
+    export.add_argument("--copy-to", metavar="DIR", help="copy each categorised document into DIR/<category>/")
+    export.add_argument("--dry-run", action="store_true", help="with --copy-to: list what would be copied, write nothing")
+    export.add_argument("--debug", action="store_true", help="show tracebacks on errors")
     return parser
 
 
@@ -292,7 +319,37 @@ def _run_suggest(args: argparse.Namespace, reporter: Reporter) -> int:
     return EXIT_OK
 
 
-_RUNNERS = {"sort": _run_sort, "review": _run_review, "suggest": _run_suggest}
+def _run_export(args: argparse.Namespace, reporter: Reporter) -> int:
+    from ..export import copy_into_category_folders, write_label_history
+    from ..workflow import current_state
+
+    if not (args.out or args.history or args.copy_to):
+        raise _UsageError("say what to export: --out FILE, --history FILE and/or --copy-to DIR")
+    if args.dry_run and not args.copy_to:
+        raise _UsageError("--dry-run goes with --copy-to")
+    if args.path is None and args.workspace is None:
+        raise _UsageError("give the collection (as given to 'seedsort sort') or --workspace FILE")
+    for target in (args.out, args.history):
+        if target:
+            result_format(target)  # fail before the work, not after it
+    with reporter.progress() as on_progress:
+        state = current_state(args.path, workspace=args.workspace, on_progress=on_progress)
+        written = []
+        if args.out:
+            written.append(("results", write_results(state.result, args.out), len(state.result)))
+        if args.history:
+            written.append(("label history", write_label_history(state.history, args.history), len(state.history)))
+        plan = None
+        if args.copy_to:
+            plan = copy_into_category_folders(
+                state.result, state.root or None, args.copy_to, dry_run=args.dry_run, texts=state.texts,
+                on_progress=on_progress,
+            )
+    reporter.export_report(written, plan)
+    return EXIT_OK
+
+
+_RUNNERS = {"sort": _run_sort, "review": _run_review, "suggest": _run_suggest, "export": _run_export}
 
 
 class _UsageError(Exception):

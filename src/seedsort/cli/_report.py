@@ -28,6 +28,7 @@ from rich.text import Text
 
 from .._progress import ProgressCallback
 from ..results import STATUSES, SortResult
+from ..export import CopyPlan
 from ..review import ReviewItem
 from ..workflow import WorkspaceRun
 from ._review import ReviewOutcome
@@ -185,6 +186,38 @@ class Reporter:
                 out.print(f"  ... and {len(run.stale) - 10} more")
         out.print(Text(f"Next: seedsort review {source}   (check the doubtful ones; decisions are saved as you go)",
                        style="dim"), overflow="fold")
+
+    def export_report(self, written: list[tuple[str, Path, int]], plan: CopyPlan | None) -> None:
+        out = self.out
+        for what, path, rows in written:
+            out.print(f"Written: {path} ({what}, {rows} rows)")
+        if plan is None:
+            return
+        verb = "Would copy" if plan.dry_run else "Copied"
+        out.print(Text(f"{verb} {len(plan.copies)} document(s) into {plan.destination}:", style="bold"))
+        counts: dict[str, int] = {}
+        for item in plan.copies:
+            counts[item.category] = counts.get(item.category, 0) + 1
+        for category, folder in plan.folders:
+            out.print(f"  {folder}/  {counts.get(category, 0)}")
+        if plan.dry_run:
+            for item in plan.copies[:10]:
+                out.print(Text(f"  {item.source or '(text of ' + item.document + ')'} -> {item.target}", style="dim"),
+                          overflow="ellipsis", no_wrap=True)
+            if len(plan.copies) > 10:
+                out.print(Text(f"  ... and {len(plan.copies) - 10} more", style="dim"))
+        if plan.conflicts:
+            out.print(Text(f"{len(plan.conflicts)} target(s) exist already; the copy would stop before writing "
+                           "anything. First ones:", style="bold"))
+            for item in plan.conflicts[:10]:
+                out.print(f"  {item.target}")
+        if plan.left_out:
+            reasons: dict[str, int] = {}
+            for item in plan.left_out:
+                reasons[item.reason] = reasons.get(item.reason, 0) + 1
+            out.print(f"Left out {len(plan.left_out)} document(s):")
+            for reason, count in sorted(reasons.items(), key=lambda kv: -kv[1]):
+                out.print(f"  {count} {reason}")
 
     def review_summary(self, outcome: ReviewOutcome, location: str, source: str | None) -> None:
         kept = outcome.decided - outcome.undone

@@ -21,8 +21,6 @@ import os
 import re
 import select
 import sys
-import termios
-import tty
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from typing import IO
@@ -31,7 +29,7 @@ from rich.console import Console
 from rich.text import Text
 
 from ..review import ReviewItem, ReviewSession
-from ._review_frame import Frame, render_frame, wrap_text
+from ._review_frame import Frame, clean_text, render_frame, wrap_text
 
 #: Why a review ended: the quit key, end of scripted input, Ctrl-C, or nothing left to review.
 QUIT_REASONS = ("quit", "end of input", "interrupted", "done")
@@ -241,9 +239,14 @@ def run_review(
     console = console or Console(highlight=False, emoji=False)
     stdin = stdin if stdin is not None else sys.stdin
     review = _Review(session, refresh_every)
-    full_screen = console.is_terminal and _isatty(stdin)
+    full_screen = console.is_terminal and _isatty(stdin) and _has_termios()
     try:
-        reason = _run_screen(review, console, stdin) if full_screen else _run_lines(review, console, stdin)
+        if review.current is None:
+            reason = "done"
+        elif full_screen:
+            reason = _run_screen(review, console, stdin)
+        else:
+            reason = _run_lines(review, console, stdin)
     except KeyboardInterrupt:
         reason = "interrupted"
     try:
@@ -251,14 +254,24 @@ def run_review(
     except KeyboardInterrupt:
         reason = "interrupted"
         outcome = review.finish(reason, lambda text: None)
+    if reason == "done":
+        console.print("Nothing left to review.", markup=False, highlight=False)
     if reason == "interrupted":
         kept = review.decisions - review.undone
         console.print(
             f"Interrupted: {kept} decision{'s are' if kept != 1 else ' is'} already saved in "
-            f"{session.location}; the labels were not re-spread.",
-            markup=False, highlight=False,
+            f"{session.location}.",
+            markup=False, highlight=False, soft_wrap=True,
         )
     return outcome
+
+
+def _has_termios() -> bool:
+    try:
+        import termios  # noqa: F401  (POSIX only; elsewhere the plain line prompts serve)
+    except ImportError:
+        return False
+    return True
 
 
 def _isatty(stream: IO[str]) -> bool:
@@ -272,8 +285,8 @@ def _isatty(stream: IO[str]) -> bool:
 # Plain line prompts (not a terminal): one command per line, scriptable.
 
 LINE_HELP = (
-    "Commands: a accept | 1-{n} or first letters: that category | n no category | s skip | "
-    "u undo | m more text, b back | ? help | q quit"
+    "Commands: a accept | 1-{n} or first letters: that category (c LETTERS when the letters "
+    "are a command) | n no category | s skip | u undo | m more text, b back | ? help | q quit"
 )
 LINE_TEXT_ROWS = 20
 
@@ -295,24 +308,27 @@ def _run_lines(review: _Review, console: Console, stdin: IO[str]) -> str:
             return "end of input"
         command = line.strip()
         if echo:
-            console.print(command, markup=False, highlight=False)
+            console.print(clean_text(command), markup=False, highlight=False)
         reason = _line_command(review, command, console, width)
         if reason:
             return reason
         if review.message:
             console.print(review.message, markup=False, highlight=False)
             review.message = ""
-    console.print("Nothing left to review.", markup=False)
     return "done"
 
 
 def _line_command(review: _Review, command: str, console: Console, width: int) -> str | None:
-    busy = lambda text: console.print(text, markup=False, highlight=False)  # noqa: E731
+    def busy(text: str) -> None:
+        console.print(text, markup=False, highlight=False)
+
     key = command.casefold()
     if key == "q":
         return "quit"
     if key == "":
         review.message = "Type a command; ? lists them."
+    elif key == "c":
+        review.message = "Type c and the first letters of a category (c req), or the letters alone."
     elif key == "a":
         review.accept(busy)
     elif key == "n":
@@ -330,7 +346,7 @@ def _line_command(review: _Review, command: str, console: Console, width: int) -
         else:
             step = LINE_TEXT_ROWS if key == "m" else -LINE_TEXT_ROWS
             review.offset = max(0, review.offset + step)
-    elif key in ("?", "h"):
+    elif key == "?":
         console.print(LINE_HELP.format(n=len(review.categories)), markup=False)
         for number, name in enumerate(review.categories, 1):
             console.print(f"  {number:>3} {name}", markup=False, highlight=False)
@@ -342,7 +358,6 @@ def _line_command(review: _Review, command: str, console: Console, width: int) -
         else:
             review.decide(category, busy)
     return None
-
 
 
 def _print_item(review: _Review, console: Console, width: int) -> None:
@@ -369,6 +384,10 @@ class _Keys:
 
     def read(self, drawn: tuple[int, int]) -> str | None:
         while True:
+            # Keys typed quickly or pasted arrive in one read; hand them out one at a time.
+            key = self._take() if self.pending else None
+            if key is not None:
+                return key
             ready, _, _ = select.select([self.fd], [], [], 0.2)
             if not ready:
                 # Polling the size keeps SIGWINCH handling out of a library-called function.
@@ -379,9 +398,6 @@ class _Keys:
             if not data:
                 return "\x04"
             self.pending += data
-            key = self._take()
-            if key is not None:
-                return key
 
     def _take(self) -> str | None:
         if self.pending.startswith(b"\x1b"):
@@ -415,6 +431,9 @@ class _Keys:
 
 
 def _run_screen(review: _Review, console: Console, stdin: IO[str]) -> str:
+    import termios
+    import tty
+
     fd = stdin.fileno()
     saved = termios.tcgetattr(fd)
 
@@ -518,7 +537,7 @@ class _Screen:
             if key in ("b", "page-up", "up"):
                 step = -abs(step)
             review.offset = max(0, review.offset + step)
-        elif key in ("?", "h"):
+        elif key == "?":
             self.show_help = True
         elif key == "q":
             return "quit"
@@ -539,7 +558,10 @@ class _Screen:
                 self.mode = None
             return None
         if key in _ENTER:
-            self._choose(self.typed)
+            if self.typed:
+                self._choose(self.typed)
+            else:
+                self.mode, review.message = None, ""
             return None
         if key == _TAB and self.mode == "name":
             fitting = [c for c in review.categories if c.casefold().startswith(self.typed.casefold())]

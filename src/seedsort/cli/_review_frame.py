@@ -193,7 +193,7 @@ def keys_line(width: int, categories: int, *, typed: bool = False) -> Text:
     if typed:
         return Text(f"a accept | {span}/letters pick | n none | s skip | u undo | m/b page | ? | q quit", style="dim")
     for variant in (
-        f"a/Enter accept  {span} number  c name  n none  s skip  u undo  space/b page  ? help  q quit",
+        f"a accept  {span} pick  c name  n none  s skip  u undo  space/b page  ? help  q quit",
         f"a accept {span}/c pick n none s skip u undo space/b page ? help q quit",
         f"keys: a {span} c n s u space b q (? explains)",
         "? explains the keys",
@@ -216,7 +216,8 @@ def _help_lines(review: _Review, width: int) -> list[Text]:
         "q           quit (labels are re-spread first); Ctrl-C quits at once",
     ):
         lines.append(Text("  " + text))
-    lines.append(Text(f"Decisions are saved to {review.session.location} at once.", style="dim"))
+    lines.append(Text("Each decision is saved at once to:", style="dim"))
+    lines.append(Text(f"  {review.session.location}", style="dim"))
     lines.append(Text("Categories", style="bold"))
     names = [f"{i:>3} {name}" for i, name in enumerate(review.categories, 1)]
     column = max(len(n) for n in names) + 2 if names else width
@@ -237,21 +238,24 @@ def render_frame(frame: Frame) -> list[Text]:
         return [Text("Nothing left to review.")]
     full_screen = height > 0
     if full_screen and (height < MIN_ROWS or width < MIN_COLUMNS):
+        if height == 1:
+            return [_fit(Text(frame.prompt), width)]
         lines = [Text(f"Enlarge the terminal to review (now {width}x{height}).", style="bold")]
-        lines += [Text("")] * max(0, height - 2) + [Text(frame.prompt)]
-        return [_fit(line, width) for line in lines[-height:]] if height > 1 else [_fit(lines[-1], width)]
+        lines += [Text("")] * (height - 2) + [Text(frame.prompt)]
+        return [_fit(line, width) for line in lines]
     if frame.show_help and full_screen:
-        body = _help_lines(review, width)[: height - 2]
+        body = _help_lines(review, width)[: height - 3]
         lines = [_header(review, item, "")] + body
-        lines += [Text("")] * (height - 2 - len(body)) + [Text("Any key returns.", style="dim"), Text(frame.prompt)]
+        lines += [Text("")] * (height - 3 - len(body)) + [Text("Any key returns.", style="dim"), Text(frame.prompt)]
         return [_fit(line, width) for line in lines]
 
-    text = wrap_text(item, width - 2)
+    text = wrap_text(item, width - 2) or ("(empty document)",)
     if full_screen:
         rows = plan_rows(height, len(text), len(item.candidates), len(item.nearby))
         frame.text_rows = rows.text
     else:
-        rows = _Rows(doc=1, text=frame.text_rows, cands=len(item.candidates), near=len(item.nearby), titles=True)
+        rows = _Rows(doc=1, text=frame.text_rows, cands=max(1, len(item.candidates)), near=len(item.nearby),
+                     titles=True)
     review.offset = max(0, min(review.offset, max(0, len(text) - rows.text)))
     shown = text[review.offset: review.offset + rows.text]
     more = len(text) > rows.text
