@@ -145,7 +145,7 @@ def test_interrupt_exits_130(pile: Path, capsys: pytest.CaptureFixture[str], mon
     def interrupted(*args: object, **kwargs: object) -> None:
         raise KeyboardInterrupt
 
-    monkeypatch.setattr("seedsort.cli.sort_into_workspace", interrupted)
+    monkeypatch.setattr("seedsort.workflow.sort_into_workspace", interrupted)
     code, _, stderr = run(["sort", str(pile / "docs"), "--seeds", str(pile / "seeds.csv"), "--out", str(pile / "r.csv")], capsys)
     assert code == 130
     assert "interrupted" in stderr

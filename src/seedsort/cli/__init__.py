@@ -14,16 +14,19 @@ import warnings
 from collections.abc import Sequence
 from pathlib import Path
 
-from ..combine import ModelSettings
+from typing import TYPE_CHECKING
+
 from ..errors import SeedsortError, SeedsortWarning
-from ..results import result_format, write_results
-from ..sorting import SortSettings, sort_folder
-from ..sources import TableColumns
-from ..vectors import VECTOR_MODES, VectorSettings
 from ..review import REVIEW_ORDERS
-from ..workflow import open_review, sort_into_workspace, write_suggestions
 from ..workspace import default_workspace_path
-from ._report import Reporter
+
+if TYPE_CHECKING:
+    from ..sorting import SortSettings
+    from ._report import Reporter
+
+# The library (scikit-learn, pandas) is imported inside each command, so '--help' and usage
+# errors answer at once. Kept equal to seedsort.vectors.VECTOR_MODES by a test.
+VECTOR_MODES = ("tfidf", "hashed", "embed")
 
 EXIT_OK, EXIT_DATA, EXIT_USAGE, EXIT_INTERRUPTED = 0, 1, 2, 130
 
@@ -239,6 +242,10 @@ def _version() -> str:
 
 
 def _settings(args: argparse.Namespace) -> SortSettings:
+    from ..combine import ModelSettings
+    from ..sorting import SortSettings
+    from ..vectors import VectorSettings
+
     return SortSettings(
         vectors=VectorSettings(
             mode=args.vectors,
@@ -256,6 +263,11 @@ def _settings(args: argparse.Namespace) -> SortSettings:
 
 
 def _run_sort(args: argparse.Namespace, reporter: Reporter) -> int:
+    from ..results import result_format, write_results
+    from ..sorting import sort_folder
+    from ..sources import TableColumns
+    from ..workflow import sort_into_workspace
+
     workspace = None if args.no_workspace else Path(args.workspace or default_workspace_path(args.path))
     if not (args.seeds or args.examples or args.label_column) and (workspace is None or not workspace.exists()):
         raise _UsageError("give seed labels with --seeds FILE, --examples DIR or --label-column NAME")
@@ -286,6 +298,8 @@ def _run_sort(args: argparse.Namespace, reporter: Reporter) -> int:
 
 
 def _open_session(args: argparse.Namespace, reporter: Reporter, *, order: str, category: str | None, limit: int):  # type: ignore[no-untyped-def]
+    from ..workflow import open_review
+
     if args.path is None and args.workspace is None:
         raise _UsageError("give the collection (as given to 'seedsort sort') or --workspace FILE")
     with reporter.progress() as on_progress:
@@ -312,6 +326,8 @@ def _run_review(args: argparse.Namespace, reporter: Reporter) -> int:
 
 
 def _run_suggest(args: argparse.Namespace, reporter: Reporter) -> int:
+    from ..workflow import write_suggestions
+
     with _open_session(args, reporter, order="suggested", category=None, limit=args.count) as session:
         items = session.queue()
         written = write_suggestions(items, args.out) if args.out else None
@@ -321,6 +337,7 @@ def _run_suggest(args: argparse.Namespace, reporter: Reporter) -> int:
 
 def _run_export(args: argparse.Namespace, reporter: Reporter) -> int:
     from ..export import copy_into_category_folders, write_label_history
+    from ..results import result_format, write_results
     from ..workflow import current_state
 
     if not (args.out or args.history or args.copy_to):
@@ -363,6 +380,8 @@ def main(argv: Sequence[str] | None = None) -> int:
     if args.command is None:
         parser.print_help(sys.stderr)
         return EXIT_USAGE
+    from ._report import Reporter
+
     reporter = Reporter(quiet=getattr(args, "quiet", False))
     try:
         return _RUNNERS[args.command](args, reporter)

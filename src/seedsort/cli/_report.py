@@ -27,11 +27,18 @@ from rich.table import Table
 from rich.text import Text
 
 from .._progress import ProgressCallback
-from ..results import STATUSES, SortResult
-from ..export import CopyPlan
+from typing import TYPE_CHECKING
+
 from ..review import ReviewItem
-from ..workflow import WorkspaceRun
 from ._review import ReviewOutcome
+
+if TYPE_CHECKING:  # the report only reads these; importing them would load scikit-learn
+    from ..export import CopyPlan
+    from ..results import SortResult
+    from ..workflow import WorkspaceRun
+
+#: The statuses of seedsort.results.STATUSES, counted in the report's header.
+STATUSES = ("seed", "assigned", "out_of_scope", "unreached", "empty", "no_category")
 
 STAGE_NAMES = {
     "read": "reading files",
