@@ -363,7 +363,7 @@ class WorkspaceReview:
             ]
             disputed.sort(key=lambda r: (not result.possible_mislabel[r], result.ids[r]))
             return [
-                (r, f"seed label disputed: a model without it says {result.categories[result.cross_checked[r]]}")
+                (r, f"disputed: held-out model says {result.categories[result.cross_checked[r]]}")
                 for r in disputed
             ]
         stale = set(self._store.stale_labels())
