@@ -183,14 +183,14 @@ def test_embed_mode_without_the_extra_says_what_to_install(
     assert stderr.strip() == 'seedsort: error: The embedding mode needs the optional extra: pip install "seedsort[embed]"'
 
 
-def test_embed_mode_sorts_and_caches_beside_the_results(pile: Path, capsys: pytest.CaptureFixture[str]) -> None:
+def test_embed_mode_sorts_and_caches_beside_the_workspace(pile: Path, capsys: pytest.CaptureFixture[str]) -> None:
     pytest.importorskip("onnxruntime", reason='the embedding extra is not installed (pip install "seedsort[embed]")')
     out = pile / "results.csv"
     args = ["sort", str(pile / "docs"), "--seeds", str(pile / "seeds.csv"), "--vectors", "embed", "--out", str(out)]
     code, stdout, stderr = run(args, capsys)
     assert code == 0, stderr
     assert "sentence embeddings" in stdout
-    cache = pile / "results.embeddings.npz"
+    cache = pile / "docs.seedsort.sqlite.embeddings.npz"  # one per collection, beside its workspace
     assert cache.exists()
     with out.open(encoding="utf-8", newline="") as handle:
         rows = {r["document"]: r for r in csv.DictReader(handle)}

@@ -147,10 +147,14 @@ def build_parser() -> argparse.ArgumentParser:
                         "collections, or sentence embeddings (needs: pip install \"seedsort[embed]\")")
     method.add_argument("--embedding-cache", metavar="FILE",
                         help="with --vectors embed: cache file of embeddings per document content "
-                        "(default: beside the results, <results>.embeddings.npz)")
+                        "(default: beside the workspace, <workspace>.embeddings.npz; with "
+                        "--no-workspace beside the results)")
     method.add_argument("--stem", metavar="LANGUAGE", help="Snowball stemming for a language, e.g. english")
     method.add_argument("--neighbours", metavar="K", type=_positive, default=10,
                         help="neighbours per document in the graph (default: %(default)s)")
+    method.add_argument("--graph", choices=("auto", "exact", "approximate"), default="auto",
+                        help="neighbour search: exact, approximate (faster on large collections), "
+                        "or auto: approximate above 20,000 documents (default: %(default)s)")
     method.add_argument("--alpha", type=_alpha, default=0.99,
                         help="how far labels spread, 0 to <1 (default: %(default)s)")
     method.add_argument("--graph-weight", metavar="W", type=_fraction, default=None,
@@ -241,6 +245,14 @@ def _version() -> str:
     return __version__
 
 
+def _default_embedding_cache(args: argparse.Namespace) -> str:
+    """Beside the workspace (one per collection), or beside the results without one."""
+    if args.no_workspace:
+        return str(Path(args.out).with_suffix(".embeddings.npz"))
+    workspace = Path(args.workspace or default_workspace_path(args.path))
+    return str(workspace.with_name(workspace.name + ".embeddings.npz"))
+
+
 def _settings(args: argparse.Namespace) -> SortSettings:
     from ..combine import ModelSettings
     from ..sorting import SortSettings
@@ -250,11 +262,10 @@ def _settings(args: argparse.Namespace) -> SortSettings:
         vectors=VectorSettings(
             mode=args.vectors,
             stem_language=args.stem,
-            embedding_cache=(args.embedding_cache or str(Path(args.out).with_suffix(".embeddings.npz")))
-            if args.vectors == "embed"
-            else None,
+            embedding_cache=(args.embedding_cache or _default_embedding_cache(args)) if args.vectors == "embed" else None,
         ),
         neighbours=args.neighbours,
+        graph=args.graph,
         out_of_scope_quantile=None if args.assign_all else args.out_of_scope_quantile,
         model=ModelSettings(
             alpha=args.alpha, graph_weight=args.graph_weight, class_mass_normalisation=args.class_mass
