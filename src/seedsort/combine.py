@@ -15,6 +15,16 @@ vectors; it costs one fit on the seeds and one product over the collection.
 :func:`cross_check` re-runs both views with each fold of the seeds held out, giving every
 seed a prediction made without it: the basis for flagging possible mislabelled seeds and
 for an estimate of the run's accuracy.
+
+On dense vectors (sentence embeddings) the classifier is fitted on graph-smoothed features
+(:func:`smooth_features`): each document's vector averaged with its neighbourhood's, the
+feature propagation of simplified graph convolution (Wu et al. 2019). A seed then carries
+what its neighbours look like, not only itself; on BANKING77 at 10 seeds per category the
+classifier alone rose from 85.3% to 87.9% (measured on sampling seeds 100-102, kept apart
+from the 0-4 of benchmarks/embedding_accuracy.py, which gives the whole pipeline's figures).
+It costs two products of the sparse graph with the (n, d) matrix per fit, O(n * k * d).
+Sparse n-gram vectors stay as they are: smoothing makes their rows several times denser
+and every fit slower.
 """
 
 from __future__ import annotations
@@ -26,6 +36,7 @@ import numpy as np
 import scipy.sparse as sp
 from sklearn.exceptions import ConvergenceWarning
 from sklearn.linear_model import LogisticRegression
+from sklearn.preprocessing import normalize
 
 from .spreading import (
     class_mass_normalise,
@@ -38,6 +49,8 @@ from .spreading import (
 DEFAULT_GRAPH_WEIGHT = 0.5
 #: Graph weights tried when the weight is tuned from the seeds.
 GRAPH_WEIGHT_GRID = tuple(round(w, 2) for w in np.linspace(0.0, 1.0, 11))
+#: Smoothing steps of the classifier's features on dense vectors when none are set.
+DENSE_FEATURE_SMOOTHING = 2
 
 
 @dataclass(frozen=True, slots=True)
@@ -46,6 +59,10 @@ class ModelSettings:
 
     ``graph_weight`` None means: choose it per run from the seeds (:func:`choose_graph_weight`);
     where no choice is possible, :data:`DEFAULT_GRAPH_WEIGHT` is used.
+
+    ``feature_smoothing`` is the number of graph steps the classifier's features are
+    smoothed over (:func:`smooth_features`); None means by the kind of vectors:
+    :data:`DENSE_FEATURE_SMOOTHING` for dense vectors (embeddings), 0 for sparse n-grams.
     """
 
     alpha: float = 0.99
@@ -55,6 +72,13 @@ class ModelSettings:
     solver: str = "cg"
     tol: float = 1e-6
     max_iter: int = 1000
+    feature_smoothing: int | None = None
+
+    def smoothing_steps(self, vectors: sp.spmatrix | np.ndarray) -> int:
+        """Feature smoothing steps for these vectors (resolves None by their kind)."""
+        if self.feature_smoothing is not None:
+            return self.feature_smoothing
+        return 0 if sp.issparse(vectors) else DENSE_FEATURE_SMOOTHING
 
 
 @dataclass(frozen=True, slots=True)
@@ -111,6 +135,49 @@ def classifier_probabilities(
     return out
 
 
+def smooth_features(
+    vectors: sp.csr_matrix | np.ndarray,
+    normalised_graph: sp.csr_matrix,
+    steps: int,
+    own_weight: float = 1.0,
+) -> sp.csr_matrix | np.ndarray:
+    """Features averaged over the neighbour graph: normalise(own_weight * X + normalise(S^K X)).
+
+    S^K X is the feature propagation of simplified graph convolution (Wu, Souza, Zhang,
+    Fifty, Yu & Weinberger 2019, "Simplifying Graph Convolutional Networks", whose
+    classifier is softmax(S^K X Theta)), here with the graph's own S = D^-1/2 W D^-1/2 in
+    place of their self-looped version; normalise() scales rows to unit L2 norm (zero rows
+    stay zero). Adding the document's own vector back keeps what sets it apart from its
+    neighbours: with ``own_weight`` 1 the classifier alone scored 87.9% on BANKING77 at 10
+    seeds per category against 87.7% for the self-looped S^2 X of the paper (measured,
+    sampling seeds 100-102). ``own_weight`` 0 gives normalise(S^K X).
+
+    Parameters
+    ----------
+    vectors:
+        (n, d) rows, dense or CSR.
+    normalised_graph:
+        (n, n) CSR, S from :func:`seedsort.spreading.normalised_affinity`.
+    steps:
+        K >= 0; 0 returns ``vectors`` unchanged.
+
+    Returns
+    -------
+    (n, d), of the same kind as ``vectors``. Cost: K sparse products, O(K * nnz(S) * d)
+    for dense vectors; a document without neighbours keeps its own vector.
+    """
+    if steps < 0:
+        raise ValueError(f"smoothing steps must be >= 0, got {steps}")
+    if steps == 0:
+        return vectors
+    spread = vectors
+    for _ in range(steps):
+        spread = normalised_graph @ spread
+    mixed = own_weight * vectors + normalize(spread)
+    out = normalize(mixed)
+    return out if sp.issparse(out) else np.asarray(out, dtype=np.asarray(vectors).dtype)
+
+
 @dataclass(frozen=True, slots=True)
 class Views:
     """The two opinions on every document, before they are blended.
@@ -165,7 +232,11 @@ def compute_views(
     n_classes: int,
     settings: ModelSettings,
 ) -> Views:
-    """Spread the seeds over the graph and fit the seed classifier."""
+    """Spread the seeds over the graph and fit the seed classifier.
+
+    The classifier sees the vectors smoothed over the graph for
+    ``settings.smoothing_steps(vectors)`` steps (:func:`smooth_features`).
+    """
     n = vectors.shape[0]
     # Balanced: reviews add seeds unevenly (corrections cluster in the confused categories).
     y = seed_matrix(seed_rows, seed_classes, n, n_classes, balanced=True)
@@ -178,7 +249,8 @@ def compute_views(
         share = np.bincount(seed_classes, minlength=n_classes) / max(1, len(seed_classes))
         scores = class_mass_normalise(scores, share)
     graph_probs, mass = to_probabilities(scores)
-    clf_probs = classifier_probabilities(vectors, seed_rows, seed_classes, n_classes, settings.classifier_strength)
+    features = smooth_features(vectors, normalised_graph, settings.smoothing_steps(vectors))
+    clf_probs = classifier_probabilities(features, seed_rows, seed_classes, n_classes, settings.classifier_strength)
     return Views(graph=graph_probs, mass=mass, classifier=clf_probs, spread_iterations=spread.iterations)
 
 
