@@ -31,7 +31,8 @@ from .combine import (
 )
 from .errors import InputError
 from .evaluation import per_category_accuracy
-from .graph import knn_cosine, nearest_rows, seed_reach, symmetric_affinity
+from .graph import nearest_rows, seed_reach, symmetric_affinity
+from .graph_approx import GRAPH_BUILDERS, resolve_graph
 from .results import NEAREST_SEEDS, SortResult
 from .scope import degree_of, out_of_scope_scores, scope_components, scope_threshold
 from .seeds import (
@@ -69,6 +70,10 @@ class SortSettings:
     min_relative_mass:
         A document whose spread mass is below this fraction of the median mass of the
         reached documents counts as not reached.
+    graph:
+        ``"exact"``, ``"approximate"`` or ``"auto"`` (exact up to
+        :data:`seedsort.graph_approx.AUTO_APPROXIMATE_ABOVE` documents); see
+        :mod:`seedsort.graph_approx`.
     """
 
     vectors: VectorSettings = field(default_factory=VectorSettings)
@@ -77,6 +82,7 @@ class SortSettings:
     cross_check_folds: int = 5
     min_relative_mass: float = 1e-4
     out_of_scope_quantile: float | None = 0.95
+    graph: str = "auto"
 
 
 def _snippet(text: str) -> str:
@@ -100,6 +106,8 @@ class Prepared:
         The vector and graph settings these were built with.
     timings:
         Seconds per stage.
+    graph_method:
+        The neighbour search used: ``"exact"`` or ``"approximate"``.
     """
 
     vectors: sp.csr_matrix | np.ndarray
@@ -107,10 +115,11 @@ class Prepared:
     graph: sp.csr_matrix
     settings_key: tuple[object, ...]
     timings: dict[str, float]
+    graph_method: str = "exact"
 
 
 def _prepared_key(settings: SortSettings) -> tuple[object, ...]:
-    return (settings.vectors, settings.neighbours)
+    return (settings.vectors, settings.neighbours, settings.graph)
 
 
 def prepare(
@@ -125,6 +134,7 @@ def prepare(
     n = len(documents)
     timings: dict[str, float] = {}
 
+    graph_method = resolve_graph(settings.graph, n)  # an unknown name fails before any work
     started = time.perf_counter()
     progress("vectors", 0, n)
     vectors = vectorise([doc.text for doc in documents], settings.vectors, on_progress=progress)
@@ -134,11 +144,11 @@ def prepare(
     started = time.perf_counter()
     # Ties between equally similar documents are broken by id, not by collection order.
     by_id = np.argsort(np.array([doc.id for doc in documents], dtype=object), kind="stable")
-    neighbours = knn_cosine(vectors, settings.neighbours, on_progress=progress, tie_order=by_id)
+    neighbours = GRAPH_BUILDERS[graph_method](vectors, settings.neighbours, on_progress=progress, tie_order=by_id)
     affinity = symmetric_affinity(neighbours, n)
     graph = normalised_affinity(affinity)
     timings["graph"] = time.perf_counter() - started
-    return Prepared(vectors, affinity, graph, _prepared_key(settings), timings)
+    return Prepared(vectors, affinity, graph, _prepared_key(settings), timings, graph_method)
 
 
 def _possible_mislabels(held_out: np.ndarray, given: np.ndarray) -> np.ndarray:
@@ -392,6 +402,7 @@ def _finish(
     record = {
         "vectors": settings.vectors.describe(),
         "neighbours": settings.neighbours,
+        "graph": prepared.graph_method,
         **{key: value for key, value in asdict(settings.model).items()},
         "graph_weight": weight,
         "graph_weight_tuned": settings.model.graph_weight is None,

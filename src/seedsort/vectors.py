@@ -126,7 +126,9 @@ def _word_ngram_analyzer(settings: VectorSettings) -> str | Callable[[str], list
 def _transformer(kwargs: dict[str, object], settings: VectorSettings) -> object:
     """An unfitted hashing or TF-IDF vectoriser for one n-gram block."""
     if settings.mode == "hashed":
-        return HashingVectorizer(n_features=settings.hash_features, alternate_sign=False, norm=None, **kwargs)
+        return HashingVectorizer(
+            n_features=settings.hash_features, alternate_sign=False, norm=None, dtype=np.float32, **kwargs
+        )
     return TfidfVectorizer(sublinear_tf=True, dtype=np.float32, **kwargs)
 
 

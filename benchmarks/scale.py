@@ -1,0 +1,261 @@
+"""Scale benchmark: wall time and peak memory per stage on generated ticket corpora.
+
+Run from the repository root (outside CI; each part can be left out):
+
+    python benchmarks/scale.py --sizes 10000 100000 1000000 --recall-sample 20000 --banking77
+
+Parts
+  --sizes N ...       a generated ticket corpus of N documents (benchmarks/_tickets.py:
+                      BANKING77 utterances resampled and perturbed, 10 seeds per category in
+                      a label column) is written to a CSV file, then the whole pipeline runs:
+                      read (seedsort.sources) -> vectors -> graph (auto: exact up to 20,000
+                      documents, approximate above) -> spreading + classifier + cross-check
+                      + nearest seeds -> export (CSV). Printed per stage: wall seconds and
+                      peak resident memory (RSS) during the stage. At sizes up to
+                      --sklearn-max, scikit-learn LabelSpreading(kernel="knn", same k) runs
+                      on the same vectors, printed as a ratio to seedsort's graph + spreading.
+  --recall-sample N   recall@k of the approximate graph against the exact one on N generated
+                      tickets (ties at the k-th similarity count as found), and both build times.
+  --banking77         the BANKING77 pool (13,083 texts): graph + spreading time of seedsort
+                      (exact and approximate graph) against scikit-learn LabelSpreading
+                      (kernel="knn", n_neighbors=k) on the same vectors, in the same process;
+                      and test accuracy with 10 seeds per category, exact against approximate
+                      graph (--samples seed draws).
+
+Peak RSS is sampled every 20 ms from /proc/self/statm (Linux) by a background thread, so a
+stage shorter than that may show the previous level. Timings on a shared machine are noisy:
+compare the ratios printed in the same run.
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import sys
+import tempfile
+import threading
+import time
+import warnings
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
+from dataclasses import replace
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+from _tickets import banking77_pool, write_csv  # noqa: E402
+
+from seedsort import Document, SortSettings, resolve_seeds, sort_documents  # noqa: E402
+from seedsort.graph import knn_cosine, symmetric_affinity  # noqa: E402
+from seedsort.graph_approx import knn_cosine_approximate, rerank  # noqa: E402
+from seedsort.results import write_results  # noqa: E402
+from seedsort.seeds import column_labels  # noqa: E402
+from seedsort.sorting import prepare  # noqa: E402
+from seedsort.sources import TableColumns, read_collection  # noqa: E402
+from seedsort.spreading import normalised_affinity, seed_matrix, spread_labels  # noqa: E402
+from seedsort.vectors import VectorSettings, vectorise  # noqa: E402
+
+_PAGE = os.sysconf("SC_PAGE_SIZE")
+
+
+def rss_bytes() -> int:
+    with open("/proc/self/statm") as handle:
+        return int(handle.read().split()[1]) * _PAGE
+
+
+class PeakSampler:
+    """Background thread keeping the peak RSS since the last reset."""
+
+    def __init__(self) -> None:
+        self.peak = rss_bytes()
+        self._stop = threading.Event()
+        self._thread = threading.Thread(target=self._run, daemon=True)
+        self._thread.start()
+
+    def _run(self) -> None:
+        while not self._stop.wait(0.02):
+            self.peak = max(self.peak, rss_bytes())
+
+    def reset(self) -> None:
+        self.peak = rss_bytes()
+
+    def close(self) -> None:
+        self._stop.set()
+        self._thread.join()
+
+
+SAMPLER: PeakSampler | None = None
+
+
+@contextmanager
+def stage(name: str, table: list[tuple[str, float, float]]) -> Iterator[None]:
+    assert SAMPLER is not None
+    SAMPLER.reset()
+    started = time.perf_counter()
+    yield
+    seconds = time.perf_counter() - started
+    peak = max(SAMPLER.peak, rss_bytes())
+    table.append((name, seconds, peak / 2**30))
+    print(f"    {name:<28}{seconds:9.1f} s{peak / 2**30:9.2f} GiB", flush=True)
+
+
+def sklearn_spreading(vectors: Any, labels: np.ndarray, k: int) -> float:
+    """Seconds of scikit-learn LabelSpreading(kernel="knn", n_neighbors=k).fit on the vectors."""
+    from sklearn.semi_supervised import LabelSpreading
+
+    started = time.perf_counter()
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # its ConvergenceWarning at max_iter is expected
+        LabelSpreading(kernel="knn", n_neighbors=k).fit(vectors, labels)
+    return time.perf_counter() - started
+
+
+def ours_graph_and_spread(vectors: Any, seed_rows: np.ndarray, seed_classes: np.ndarray, c: int, k: int, builder: Callable[..., Any]) -> float:
+    """Seconds of seedsort's graph (given builder) + label spreading (CG, alpha 0.99)."""
+    started = time.perf_counter()
+    n = vectors.shape[0]
+    s = normalised_affinity(symmetric_affinity(builder(vectors, k), n))
+    spread_labels(s, seed_matrix(seed_rows, seed_classes, n, c))
+    return time.perf_counter() - started
+
+
+def run_size(n: int, args: argparse.Namespace, workdir: Path) -> None:
+    print(f"\n{n:,} generated tickets ({args.vectors} vectors, k={args.k}, graph={args.graph})", flush=True)
+    path = workdir / f"tickets-{n}.csv"
+    started = time.perf_counter()
+    write_csv(path, n, seed=args.seed)
+    print(f"    (corpus written in {time.perf_counter() - started:.1f} s, {path.stat().st_size / 2**20:.0f} MiB; not timed below)")
+    settings = SortSettings(vectors=VectorSettings(mode=args.vectors), neighbours=args.k, graph=args.graph)
+    table: list[tuple[str, float, float]] = []
+    with stage("read (CSV)", table):
+        collection = read_collection(path, columns=TableColumns(text=("text",), id="id", label="label"))
+        documents = list(collection.documents)
+        seeds = resolve_seeds(documents, column_labels(documents), root=path.parent)
+    with stage("vectors + graph (prepare)", table):
+        prepared = prepare(documents, settings)
+    for name in ("vectors", "graph"):
+        print(f"      of which {name:<16}{prepared.timings[name]:9.1f} s   ({prepared.graph_method} graph)" if name == "graph"
+              else f"      of which {name:<16}{prepared.timings[name]:9.1f} s")
+    with stage("spread + classifier + checks", table):
+        result = sort_documents(documents, seeds, settings, prepared=prepared, collection=collection)
+    for name, seconds in result.settings["seconds"].items():
+        if name not in ("vectors", "graph"):
+            print(f"      of which {name:<16}{seconds:9.1f} s")
+    with stage("export (CSV)", table):
+        write_results(result, workdir / f"results-{n}.csv")
+    total = sum(seconds for _, seconds, _ in table)
+    print(f"    {'total':<28}{total:9.1f} s{max(peak for *_, peak in table):9.2f} GiB peak")
+    if n <= args.sklearn_max:
+        labels = np.full(n, -1)
+        labels[seeds.rows] = seeds.classes
+        theirs = sklearn_spreading(prepared.vectors, labels, args.k)
+        ours = prepared.timings["graph"] + result.settings["seconds"]["spread"]
+        print(f"    sklearn LabelSpreading(knn, k={args.k}) {theirs:.1f} s; seedsort graph + spread {ours:.1f} s: "
+              f"{theirs / ours:.1f}x faster")
+    else:
+        print(f"    sklearn LabelSpreading skipped above --sklearn-max {args.sklearn_max:,} (its kNN search is exact, O(n^2))")
+
+
+def tie_aware_recall(approx: Any, exact: Any) -> float:
+    """Share of the exact k neighbours found; a listed neighbour as similar as the exact k-th counts."""
+    valid = exact.indices >= 0
+    kth = np.where(valid.any(axis=1), np.where(valid, exact.similarities, np.inf).min(axis=1), np.inf)
+    hits = ((approx.indices >= 0) & (approx.similarities >= kth[:, None] - 1e-5)).sum(axis=1)
+    return float(np.minimum(hits, valid.sum(axis=1)).sum() / max(1, valid.sum()))
+
+
+def run_recall(n: int, args: argparse.Namespace, workdir: Path) -> None:
+    from _tickets import tickets
+
+    texts = [text for _, text, _ in tickets(n, seed=args.seed + 1)]
+    vectors = vectorise(texts, VectorSettings(mode=args.vectors))
+    print(f"\nrecall@{args.k} on {n:,} generated tickets ({args.vectors} vectors, {vectors.nnz / n:.0f} features a row)")
+    started, cpu = time.perf_counter(), time.process_time()
+    exact = knn_cosine(vectors, args.k)
+    exact_s, exact_cpu = time.perf_counter() - started, time.process_time() - cpu
+    print(f"    exact graph        {exact_s:7.1f} s wall {exact_cpu:7.1f} s CPU")
+    for dims in args.sketch_dims:
+        started, cpu = time.perf_counter(), time.process_time()
+        approx = knn_cosine_approximate(vectors, args.k, dims=dims)
+        approx_s, approx_cpu = time.perf_counter() - started, time.process_time() - cpu
+        again = knn_cosine_approximate(vectors, args.k, dims=dims)
+        plain = float(np.mean([np.intersect1d(a[a >= 0], e[e >= 0]).size / max(1, (e >= 0).sum())
+                               for a, e in zip(approx.indices, exact.indices)]))
+        print(f"    approximate graph, {dims} sketch dims: {approx_s:7.1f} s wall {approx_cpu:7.1f} s CPU "
+              f"({exact_cpu / approx_cpu:.1f}x less CPU than exact)")
+        print(f"      recall@{args.k} {tie_aware_recall(approx, exact):.4f} (ties count as found; by index only: {plain:.4f}); "
+              f"rebuilt graph identical: {np.array_equal(approx.indices, again.indices)}", flush=True)
+
+
+def run_banking77(args: argparse.Namespace) -> None:
+    import pandas as pd
+
+    data = Path(__file__).resolve().parent.parent / "tests" / "data" / "banking77"
+    train, test = pd.read_csv(data / "train.csv"), pd.read_csv(data / "test.csv")
+    documents = [Document.make(f"train.csv#row-{i + 1}", "train.csv", t) for i, t in enumerate(train.text)]
+    documents += [Document.make(f"test.csv#row-{i + 1}", "test.csv", t) for i, t in enumerate(test.text)]
+    _, _, categories = banking77_pool()
+    index = {c: i for i, c in enumerate(categories)}
+    y_train, y_test = train.category.map(index).to_numpy(), test.category.map(index).to_numpy()
+    n, c, n_train = len(documents), len(categories), len(train)
+    print(f"\nBANKING77 pool: {n:,} texts, {c} categories, k={args.k}, {args.vectors} vectors")
+    base = SortSettings(vectors=VectorSettings(mode=args.vectors), neighbours=args.k)
+    prepared = {g: prepare(documents, replace(base, graph=g)) for g in ("exact", "approximate")}
+    vectors = prepared["exact"].vectors
+    rng = np.random.default_rng(0)
+    rows = np.sort(np.concatenate([rng.choice(np.flatnonzero(y_train == j), 10, replace=False) for j in range(c)]))
+    labels = np.full(n, -1)
+    labels[rows] = y_train[rows]
+    theirs = sklearn_spreading(vectors, labels, args.k)
+    for name, builder in (("exact", knn_cosine), ("approximate", knn_cosine_approximate)):
+        ours = ours_graph_and_spread(vectors, rows, y_train[rows], c, args.k, builder)
+        print(f"    graph + spreading, {name:<12}{ours:7.1f} s; sklearn LabelSpreading {theirs:.1f} s: {theirs / ours:5.1f}x faster")
+    exact_nb = knn_cosine(vectors, args.k)
+    approx_nb = knn_cosine_approximate(vectors, args.k)
+    print(f"    recall@{args.k} of the approximate graph on the pool: {tie_aware_recall(approx_nb, exact_nb):.4f}")
+    accuracy: dict[str, list[float]] = {"exact": [], "approximate": []}
+    for sample in range(args.samples):
+        rng = np.random.default_rng(sample)
+        rows = np.sort(np.concatenate([rng.choice(np.flatnonzero(y_train == j), 10, replace=False) for j in range(c)]))
+        seeds = resolve_seeds(documents, [(documents[r].id, categories[y_train[r]]) for r in rows])
+        for g in accuracy:
+            result = sort_documents(documents, seeds, replace(base, graph=g), prepared=prepared[g])
+            probs = np.zeros((n, c))
+            probs[:, [index[x] for x in result.categories]] = result.probabilities
+            accuracy[g].append(float(np.mean(probs[n_train:].argmax(axis=1) == y_test)))
+        print(f"    sample {sample}: accuracy exact {accuracy['exact'][-1]:.4f}, approximate {accuracy['approximate'][-1]:.4f}", flush=True)
+    diff = 100 * (np.mean(accuracy["approximate"]) - np.mean(accuracy["exact"]))
+    print(f"    10 seeds/category, {args.samples} samples: exact {np.mean(accuracy['exact']):.4f}, "
+          f"approximate {np.mean(accuracy['approximate']):.4f} ({diff:+.2f} points)")
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser(description=__doc__, formatter_class=argparse.RawDescriptionHelpFormatter)
+    parser.add_argument("--sizes", type=int, nargs="*", default=[], help="generated corpus sizes to run end to end")
+    parser.add_argument("--recall-sample", type=int, default=0, help="documents for the recall check (0: skip)")
+    parser.add_argument("--banking77", action="store_true", help="speed against sklearn and accuracy on BANKING77")
+    parser.add_argument("--samples", type=int, default=3, help="seed draws for the BANKING77 accuracy (default 3)")
+    parser.add_argument("--vectors", choices=("tfidf", "hashed"), default="tfidf")
+    parser.add_argument("--graph", choices=("auto", "exact", "approximate"), default="auto")
+    parser.add_argument("-k", type=int, default=10, help="neighbours (default 10, seedsort's default)")
+    parser.add_argument("--sklearn-max", type=int, default=20_000, help="largest size to run sklearn LabelSpreading at")
+    parser.add_argument("--sketch-dims", type=int, nargs="+", default=[512], help="sketch sizes for the recall check")
+    parser.add_argument("--seed", type=int, default=0, help="corpus generator seed")
+    args = parser.parse_args()
+    global SAMPLER
+    SAMPLER = PeakSampler()
+    print(f"{os.cpu_count()} cores; numbers are wall seconds unless marked CPU")
+    with tempfile.TemporaryDirectory(prefix="seedsort-scale-") as tmp:
+        if args.banking77:
+            run_banking77(args)
+        if args.recall_sample:
+            run_recall(args.recall_sample, args, Path(tmp))
+        for n in args.sizes:
+            run_size(n, args, Path(tmp))
+    SAMPLER.close()
+
+
+if __name__ == "__main__":
+    main()
