@@ -34,6 +34,7 @@ from .export import LabelEvent
 from .results import SortResult
 from .review import Candidate, NearbySeed, ReviewItem
 from .seeds import match_references, seed_set
+from .graph_approx import resolve_graph
 from .sorting import Prepared, SeedChecks, SortSettings, _prepared_key, gather, prepare, sort_documents
 from .sources import Collection, Document, TableColumns
 from .vectors import VectorSettings
@@ -87,6 +88,7 @@ def cached_prepare(
         prepared = Prepared(
             vectors=stored["vectors"], affinity=stored["affinity"], graph=stored["graph"],
             settings_key=_prepared_key(settings), timings={"vectors": 0.0, "graph": 0.0},
+            graph_method=resolve_graph(settings.graph, len(documents)),
         )
         return prepared, True
     prepared = prepare(documents, settings, on_progress=on_progress)

@@ -175,3 +175,20 @@ def test_review_errors_are_one_line(tmp_path: Path, capsys: pytest.CaptureFixtur
     assert err.startswith("seedsort: error: No workspace at") and err.count("\n") == 1
     assert main(["export", str(tmp_path / "nothing-here")]) == 2
     assert "say what to export" in capsys.readouterr().err
+
+
+def test_suggest_lists_and_writes_a_labels_file_to_fill_in(sorted_pile: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    queries = sorted_pile / "queries"
+    out = sorted_pile / "to-label.csv"
+    assert main(["suggest", str(queries), "--count", "6", "--out", str(out)]) == 0
+    report = capsys.readouterr().out
+    assert "Label these next (6)" in report
+    table = pd.read_csv(out, keep_default_na=False)
+    assert list(table.columns) == ["document", "category", "guess", "reason", "text"]
+    assert len(table) == 6 and (table["category"] == "").all() and table["document"].is_unique
+    # Filled in from the dataset's own intents, the file is accepted back as seeds.
+    truth = {path.name: path.name.rsplit("-", 1)[0] for path in queries.iterdir()}
+    table["category"] = [truth[doc] for doc in table["document"]]
+    table[["document", "category"]].to_csv(out, index=False)
+    assert main(["sort", str(queries), "--seeds", str(out), "--out", str(sorted_pile / "r2.csv"), "--quiet"]) == 0
+    assert "6 label(s) added" in " ".join(capsys.readouterr().out.split())
