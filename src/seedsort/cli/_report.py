@@ -123,7 +123,8 @@ class Reporter:
                 f"{len(result.categories)} categories",
             )
         )
-        out.print(Text(f"method: {result.settings.get('vectors')}; {result.settings.get('neighbours')}-NN "
+        approximate = " (approximate search)" if result.settings.get("graph") == "approximate" else ""
+        out.print(Text(f"method: {result.settings.get('vectors')}; {result.settings.get('neighbours')}-NN{approximate} "
                        f"graph; spreading alpha {result.settings.get('alpha')} blended with a seed "
                        f"classifier (graph weight {result.settings.get('graph_weight'):.1f}"
                        f"{', chosen from the seeds' if result.settings.get('graph_weight_tuned') else ''})",
