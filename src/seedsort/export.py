@@ -214,7 +214,7 @@ def history_table(events: Iterable[LabelEvent]) -> Any:
     )
 
 
-def _write_atomically(path: Path, write: Callable[[Path], None], what: str) -> Path:
+def write_atomically(path: Path, write: Callable[[Path], None], what: str) -> Path:
     """Run ``write`` on a temporary file beside ``path``, then rename it into place (os.replace)."""
     if path.is_dir():
         raise InputError(f"The {what} path {path} is a folder; give a file name ending in .csv, .jsonl or .parquet.")
@@ -255,7 +255,7 @@ def write_label_history(
     events = list(events)
     if fmt == "parquet":
         require_parquet()
-        return _write_atomically(path, lambda tmp: write_parquet(history_table(events), tmp), "label history")
+        return write_atomically(path, lambda tmp: write_parquet(history_table(events), tmp), "label history")
 
     def write_text(tmp: Path) -> None:
         with open(tmp, "w", encoding="utf-8", newline="") as handle:
@@ -268,7 +268,7 @@ def write_label_history(
                 for event in events:
                     handle.write(json.dumps(event.record(), ensure_ascii=False) + "\n")
 
-    return _write_atomically(path, write_text, "label history")
+    return write_atomically(path, write_text, "label history")
 
 
 # --- copying into category folders ---------------------------------------------------------

@@ -16,7 +16,6 @@ from __future__ import annotations
 import hashlib
 import math
 import os
-import tempfile
 import time
 from collections.abc import Sequence
 from datetime import datetime
@@ -30,7 +29,7 @@ import pandas as pd
 from ._progress import ProgressCallback, no_progress
 from .combine import ModelSettings
 from .errors import InputError
-from .export import LabelEvent
+from .export import LabelEvent, write_atomically
 from .results import SortResult
 from .review import Candidate, NearbySeed, ReviewItem
 from .seeds import match_references, seed_set
@@ -500,18 +499,7 @@ def write_suggestions(items: Sequence[ReviewItem], path: str | os.PathLike[str])
         ],
         columns=["document", "category", "guess", "reason", "text"],
     )
-    directory = path.parent if str(path.parent) else Path(".")
-    if not directory.is_dir():
-        raise InputError(f"Folder {directory} does not exist; create it first.")
-    fd, tmp = tempfile.mkstemp(prefix=".seedsort-", suffix=".part", dir=directory)
-    try:
-        with os.fdopen(fd, "w", encoding="utf-8", newline="") as handle:
-            frame.to_csv(handle, index=False)
-        os.replace(tmp, path)
-    except BaseException:
-        Path(tmp).unlink(missing_ok=True)
-        raise
-    return path
+    return write_atomically(path, lambda tmp: frame.to_csv(tmp, index=False), "suggestions")
 
 
 def open_review(
