@@ -16,6 +16,9 @@ Parts
                       on the same vectors, printed as a ratio to seedsort's graph + spreading.
   --recall-sample N   recall@k of the approximate graph against the exact one on N generated
                       tickets (ties at the k-th similarity count as found), and both build times.
+  --graph-speed       the exact graph (knn_cosine) and the nearest-seed search (nearest_rows,
+                      10 seeds per category) on the BANKING77 pool, each against scikit-learn's
+                      NearestNeighbors(metric="cosine", algorithm="brute") on the same vectors.
   --banking77         the BANKING77 pool (13,083 texts): graph + spreading time of seedsort
                       (exact and approximate graph) against scikit-learn LabelSpreading
                       (kernel="knn", n_neighbors=k) on the same vectors, in the same process;
@@ -189,6 +192,41 @@ def run_recall(n: int, args: argparse.Namespace, workdir: Path) -> None:
               f"rebuilt graph identical: {np.array_equal(approx.indices, again.indices)}", flush=True)
 
 
+def run_graph_speed(args: argparse.Namespace) -> None:
+    """The exact graph and the nearest-seed search alone, against scikit-learn's brute-force
+    cosine NearestNeighbors on the same BANKING77 pool vectors, in the same process."""
+    from sklearn.neighbors import NearestNeighbors
+
+    from seedsort.graph import nearest_rows
+
+    texts, y, categories = banking77_pool()
+    vectors = vectorise(texts, VectorSettings(mode=args.vectors))
+    n = vectors.shape[0]
+    print(f"\nexact graph on the BANKING77 pool: {n:,} texts, k={args.k}, {args.vectors} vectors, "
+          f"{vectors.nnz / n:.0f} features a row")
+    started = time.perf_counter()
+    ours = knn_cosine(vectors, args.k)
+    ours_s = time.perf_counter() - started
+    started = time.perf_counter()
+    distance, index = NearestNeighbors(n_neighbors=args.k, metric="cosine", algorithm="brute").fit(vectors).kneighbors()
+    theirs_s = time.perf_counter() - started
+    same = np.mean([set(a[a >= 0].tolist()) == set(b.tolist()) for a, b in zip(ours.indices, index)])
+    gap = np.abs(np.sort(ours.similarities, axis=1) - np.sort(1 - distance, axis=1)).max()
+    print(f"    knn_cosine {ours_s:7.1f} s; sklearn NearestNeighbors(cosine, brute) {theirs_s:.1f} s: {theirs_s / ours_s:.1f}x faster")
+    print(f"      same neighbour set on {same:.4f} of rows (the rest: ties at the k-th or similarity 0); "
+          f"largest similarity difference {gap:.1e}")
+    rng = np.random.default_rng(0)
+    targets = np.sort(np.concatenate([rng.choice(np.flatnonzero(y == j), 10, replace=False) for j in range(len(categories))]))
+    started = time.perf_counter()
+    rows, sims = nearest_rows(vectors, targets, 3)
+    ours_s = time.perf_counter() - started
+    started = time.perf_counter()
+    distance, _ = NearestNeighbors(n_neighbors=4, metric="cosine", algorithm="brute").fit(vectors[targets]).kneighbors(vectors)
+    theirs_s = time.perf_counter() - started
+    print(f"    nearest_rows ({targets.size} seeds, 3 each) {ours_s:.1f} s; sklearn NearestNeighbors on the seeds "
+          f"(4 each, self included) {theirs_s:.1f} s: {theirs_s / ours_s:.1f}x faster", flush=True)
+
+
 def run_banking77(args: argparse.Namespace) -> None:
     import pandas as pd
 
@@ -236,6 +274,7 @@ def main() -> None:
     parser.add_argument("--sizes", type=int, nargs="*", default=[], help="generated corpus sizes to run end to end")
     parser.add_argument("--recall-sample", type=int, default=0, help="documents for the recall check (0: skip)")
     parser.add_argument("--banking77", action="store_true", help="speed against sklearn and accuracy on BANKING77")
+    parser.add_argument("--graph-speed", action="store_true", help="exact graph and nearest seeds against sklearn on BANKING77")
     parser.add_argument("--samples", type=int, default=3, help="seed draws for the BANKING77 accuracy (default 3)")
     parser.add_argument("--vectors", choices=("tfidf", "hashed"), default="tfidf")
     parser.add_argument("--graph", choices=("auto", "exact", "approximate"), default="auto")
@@ -248,6 +287,8 @@ def main() -> None:
     SAMPLER = PeakSampler()
     print(f"{os.cpu_count()} cores; numbers are wall seconds unless marked CPU")
     with tempfile.TemporaryDirectory(prefix="seedsort-scale-") as tmp:
+        if args.graph_speed:
+            run_graph_speed(args)
         if args.banking77:
             run_banking77(args)
         if args.recall_sample:

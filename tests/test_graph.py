@@ -166,3 +166,77 @@ def test_ties_follow_tie_order_not_row_position() -> None:
     for new_row, old_row in enumerate(perm):
         assert names[perm][moved.indices[new_row]].tolist() == names[base.indices[old_row]].tolist()
         np.testing.assert_array_equal(moved.similarities[new_row], base.similarities[old_row])
+
+
+def _reference_top_k(x: np.ndarray, k: int, rank: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """The documented contract written out densely: per row, the k positive similarities
+    (float64 dot products, self excluded), by similarity descending, then ``rank`` ascending."""
+    full = x.astype(np.float64) @ x.astype(np.float64).T
+    n = x.shape[0]
+    indices = np.full((n, k), -1)
+    sims = np.zeros((n, k))
+    for row in range(n):
+        others = np.array([j for j in range(n) if j != row and full[row, j] > 0], dtype=np.int64)
+        best = others[np.lexsort((rank[others], -full[row, others]))][:k]
+        indices[row, : best.size] = best
+        sims[row, : best.size] = full[row, best]
+    return indices, sims
+
+
+def test_many_duplicates_tie_by_tie_order(sentences: list[str]) -> None:
+    """30 copies of one text tie at similarity 1 with each other, far more than k. Each copy
+    must list the other copies first in tie order, whatever the row order. Reference: the
+    contract computed densely (_reference_top_k); sklearn brute cosine gives the copies
+    distance 0 to each other, checked below."""
+    texts = sentences[:20] + [sentences[3]] * 30 + sentences[20:]
+    x = vectorise(texts)
+    rng = np.random.default_rng(0)
+    tie_order = rng.permutation(len(texts))
+    rank = np.empty(len(texts), dtype=np.int64)
+    rank[tie_order] = np.arange(len(texts))
+    ours = knn_cosine(x, K, tie_order=tie_order)
+    ref_idx, ref_sim = _reference_top_k(x.toarray(), K, rank)
+    np.testing.assert_array_equal(ours.indices, ref_idx)
+    np.testing.assert_allclose(ours.similarities, ref_sim, atol=1e-6)
+    copies = [3] + list(range(20, 50))
+    distance, _ = NearestNeighbors(n_neighbors=K, metric="cosine", algorithm="brute").fit(x).kneighbors(x[copies])
+    np.testing.assert_allclose(distance, 0.0, atol=1e-6)
+    perm = rng.permutation(len(texts))
+    moved = knn_cosine(x[perm], K, tie_order=np.argsort(rank[perm]))
+    for new_row, old_row in enumerate(perm):
+        assert perm[moved.indices[new_row][moved.indices[new_row] >= 0]].tolist() == [
+            j for j in ours.indices[old_row].tolist() if j >= 0
+        ]
+
+
+@pytest.mark.parametrize("ratio", [0.0, 256.0, 1e9], ids=["all-sparse", "default", "all-dense"])
+@pytest.mark.parametrize("threads", [1, 2])
+def test_feature_split_and_threads_do_not_change_the_graph(
+    vectors: sp.csr_matrix, monkeypatch: pytest.MonkeyPatch, ratio: float, threads: int
+) -> None:
+    """Scoring some features densely is the exact identity X Y^T = X_H Y_H^T + X_L Y_L^T, and
+    threads only change which block runs when (common practice): the graph is the same,
+    equal to the contract computed densely (_reference_top_k)."""
+    import seedsort.graph as graph
+
+    monkeypatch.setattr(graph, "SPARSE_COST_RATIO", ratio)
+    monkeypatch.setattr(graph, "THREADS", threads)
+    got = knn_cosine(vectors, K, block_bytes=4 * vectors.shape[0] * 4)
+    ref_idx, ref_sim = _reference_top_k(vectors.toarray(), K, np.arange(vectors.shape[0]))
+    np.testing.assert_array_equal(got.indices, ref_idx)
+    np.testing.assert_allclose(got.similarities, ref_sim, atol=1e-6)
+    rows, sims = nearest_rows(vectors, np.array([30, 0, 10, 20]), 2, block_bytes=4 * 4 * 3)
+    assert rows.shape == (vectors.shape[0], 2) and not np.any(rows == np.arange(vectors.shape[0])[:, None])
+    reference = nearest_rows(vectors, np.array([30, 0, 10, 20]), 2)
+    np.testing.assert_array_equal(rows, reference[0])
+    np.testing.assert_array_equal(sims, reference[1])
+
+
+def test_nearest_rows_ties_go_to_the_target_listed_first() -> None:
+    """Three identical targets tie for every row; the one listed first in ``targets`` wins
+    (the caller lists seeds by id). Reference: the contract, checked by hand on 5 rows."""
+    x = np.array([[1, 0], [1, 0], [1, 0], [1, 0], [0, 1]], dtype=np.float32)
+    rows, sims = nearest_rows(sp.csr_matrix(x), np.array([3, 1, 2]), 2)
+    assert rows.tolist() == [[3, 1], [3, 2], [3, 1], [1, 2], [-1, -1]]
+    np.testing.assert_allclose(sims[:4], 1.0)
+    assert np.all(sims[4] == 0)
