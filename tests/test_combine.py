@@ -260,3 +260,41 @@ def test_smoothing_helps_the_seed_classifier_on_banking77_embeddings() -> None:
     smoothed = compute_views(vectors, graph, seeds, labels[seeds], 20, ModelSettings())
     assert accuracy(smoothed.classifier) >= accuracy(plain.classifier) + 0.015
     assert accuracy(smoothed.blend(0.5)) >= accuracy(plain.blend(0.5))
+
+
+def test_classifier_for_some_rows_equals_sklearn_on_those_rows(model_inputs) -> None:
+    """Reference: sklearn LogisticRegression(C=10, max_iter=2000) fitted on the full feature
+    matrix, predict_proba of the chosen rows only (what a cross-check fold asks for)."""
+    vectors, _ = model_inputs
+    rows = np.array([5, 17, 3, 39, 40])  # any order; row 40 is the empty document
+    ours = classifier_probabilities(vectors, SEED_ROWS, SEED_CLASSES, 4, 10.0, rows=rows)
+    ref = LogisticRegression(C=10.0, max_iter=2000, tol=1e-10).fit(vectors[SEED_ROWS], SEED_CLASSES)
+    assert ours.shape == (rows.size, 4)
+    np.testing.assert_allclose(ours, ref.predict_proba(vectors[rows]), atol=2e-3)
+    np.testing.assert_allclose(ours, classifier_probabilities(vectors, SEED_ROWS, SEED_CLASSES, 4, 10.0)[rows], atol=1e-12)
+
+
+def test_cross_check_started_from_the_full_run_reaches_the_same_held_out_views(model_inputs) -> None:
+    """Reference: k-fold cross-validation (common practice) as in the test above, and the
+    closed form of Zhou et al. (2004), F* = (1 - alpha)(I - alpha S)^-1 Y (numpy.linalg.solve),
+    for each fold's spread: starting the solver from the full run's scores changes where it
+    starts, not the fixed point, so the held-out views agree to within the solver tolerance."""
+    vectors, graph = model_inputs
+    key = np.array([f"{r:03d}" for r in SEED_ROWS], dtype=object)
+    settings = ModelSettings(graph_weight=0.5, tol=1e-10)
+    full = compute_views(vectors, graph, SEED_ROWS, SEED_CLASSES, 4, settings)
+    cold = cross_check(vectors, graph, SEED_ROWS, SEED_CLASSES, 4, settings, key, folds=3)
+    warm = cross_check(vectors, graph, SEED_ROWS, SEED_CLASSES, 4, settings, key, folds=3, full_scores=full.spread_scores())
+    np.testing.assert_allclose(warm.graph, cold.graph, atol=1e-7)
+    np.testing.assert_allclose(warm.mass, cold.mass, atol=1e-7)
+    np.testing.assert_array_equal(warm.classifier, cold.classifier)
+    folds = fold_of_each_seed(SEED_CLASSES, key, 3)
+    s = graph.toarray().astype(np.float64)
+    for f in range(3):
+        train = folds != f
+        y = seed_matrix(SEED_ROWS[train], SEED_CLASSES[train], s.shape[0], 4, balanced=True)
+        closed = (1 - settings.alpha) * np.linalg.solve(np.eye(s.shape[0]) - settings.alpha * s, y)
+        probs, mass = to_probabilities(np.clip(closed, 0.0, None))
+        held = np.flatnonzero(~train)
+        np.testing.assert_allclose(warm.graph[held], probs[SEED_ROWS[held]], atol=1e-6)
+        np.testing.assert_allclose(warm.mass[held], mass[SEED_ROWS[held]], atol=1e-7)

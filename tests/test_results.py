@@ -90,15 +90,21 @@ def test_atomic_write_leaves_no_temporary_file(result: SortResult, tmp_path: Pat
     assert sorted(p.name for p in tmp_path.iterdir()) == ["out.csv"]
     before = path.read_bytes()
 
-    def broken(self):
+    def broken_rows(self):
         yield from ()
         raise RuntimeError("disk full")
 
-    monkeypatch.setattr(SortResult, "records", broken)
-    with pytest.raises(RuntimeError, match="disk full"):
-        write_results(result, path)
-    assert sorted(p.name for p in tmp_path.iterdir()) == ["out.csv"]
-    assert path.read_bytes() == before
+    def broken_table(self):
+        raise RuntimeError("disk full")
+
+    # The CSV is built from to_frame(), the JSON Lines from records(): fail each mid-write.
+    monkeypatch.setattr(SortResult, "to_frame", broken_table)
+    monkeypatch.setattr(SortResult, "records", broken_rows)
+    for fmt in ("csv", "jsonl"):
+        with pytest.raises(RuntimeError, match="disk full"):
+            write_results(result, path, fmt=fmt)
+        assert sorted(p.name for p in tmp_path.iterdir()) == ["out.csv"]
+        assert path.read_bytes() == before
 
 
 def test_summary_and_doubtful_order(result: SortResult) -> None:
@@ -109,3 +115,41 @@ def test_summary_and_doubtful_order(result: SortResult) -> None:
     doubtful = result.doubtful()
     assert all(result.status[r] == "assigned" for r in doubtful)
     assert np.all(np.diff(result.confidence[doubtful]) >= 0)
+
+
+def test_csv_and_jsonl_hold_the_same_values(result: SortResult, tmp_path: Path) -> None:
+    """Reference: each file read back by its standard reader (pandas.read_csv, json.loads);
+    both are built column-wise, so every CSV cell must equal the JSON Lines field it
+    flattens, and numbers must be Python's round(value, 4) of the result's own arrays."""
+    table = pd.read_csv(write_results(result, tmp_path / "out.csv"), keep_default_na=False, na_values=[""])
+    lines = write_results(result, tmp_path / "out.jsonl").read_text(encoding="utf-8").splitlines()
+    records = [json.loads(line) for line in lines]
+    for i, (record, (_, row)) in enumerate(zip(records, table.iterrows())):
+        for key in CSV_COLUMNS:
+            if key.startswith("nearest_seed_"):
+                continue
+            cell = row[key]
+            assert (record[key] is None and pd.isna(cell)) or record[key] == cell, (i, key)
+        for j, seed in enumerate(record["nearest_seeds"], start=1):
+            assert row[f"nearest_seed_{j}"] == seed["document"]
+            assert row[f"nearest_seed_{j}_category"] == seed["category"]
+            assert row[f"nearest_seed_{j}_similarity"] == seed["similarity"]
+        for j in range(len(record["nearest_seeds"]) + 1, 4):
+            assert pd.isna(row[f"nearest_seed_{j}"]) and pd.isna(row[f"nearest_seed_{j}_similarity"])
+        if not np.isnan(result.confidence[i]):
+            assert record["confidence"] == round(float(result.confidence[i]), 4)
+        expected = {name: round(float(p), 4) for name, p in zip(result.categories, result.probabilities[i])}
+        assert record["probabilities"] == expected
+
+
+def test_rounding_matches_python_round_at_half_way_values() -> None:
+    """Reference: Python's built-in round(x, 4), which rounds the exact binary value;
+    scaling by 10^4 first (numpy.round) sends some half-way values the other way."""
+    from seedsort.results import _round4
+
+    values = np.array([0.01625, 0.00005, 0.12345, 0.5, 1.0, 0.99995, 0.2500500001, np.nan, 0.0], dtype=np.float64)
+    values = np.concatenate([values, np.random.default_rng(0).integers(0, 10**6, 5000) / 10**5 + 5e-5])
+    expected = [round(v, 4) for v in values.tolist()]
+    got = _round4(values).tolist()
+    assert all((np.isnan(a) and np.isnan(b)) or a == b for a, b in zip(got, expected))
+    assert any(round(v, 4) != n for v, n in zip(values.tolist(), np.round(values, 4).tolist()) if not np.isnan(v))

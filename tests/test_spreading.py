@@ -24,6 +24,7 @@ import scipy.sparse as sp
 from scipy.sparse.csgraph import connected_components
 from sklearn.semi_supervised import LabelSpreading
 
+from seedsort import spreading
 from seedsort.errors import SpreadingNotConvergedWarning
 from seedsort.graph import knn_cosine, symmetric_affinity
 from seedsort.spreading import (
@@ -77,7 +78,10 @@ def test_matches_sklearn_label_spreading_on_knn_graph(corpus_affinity, solver: s
     expected = _sklearn_label_spreading(w, labels, alpha)
     seeds = np.flatnonzero(labels >= 0)
     y = seed_matrix(seeds, labels[seeds], len(labels), len(TOPICS))
-    result = spread_labels(normalised_affinity(w), y, alpha=alpha, tol=1e-13, max_iter=100_000, solver=solver)
+    # The same W on both sides, normalised in float64 as scikit-learn does: S rounded to
+    # float32 errs by ~6e-8 relative, which alpha 0.99 amplifies past this check's 1e-7.
+    s = normalised_affinity(sp.csr_matrix(w, dtype=np.float64))
+    result = spread_labels(s, y, alpha=alpha, tol=1e-13, max_iter=100_000, solver=solver)
     assert result.converged
     probs, mass = to_probabilities(result.scores)
     assert np.all(mass > 0)
@@ -162,3 +166,44 @@ def test_to_probabilities_rows_sum_to_one_or_are_uniform() -> None:
     probs, mass = to_probabilities(np.array([[2.0, 2.0, 4.0], [0.0, 0.0, 0.0], [-1e-12, 1.0, 0.0]]))
     np.testing.assert_allclose(probs, [[0.25, 0.25, 0.5], [1 / 3, 1 / 3, 1 / 3], [0.0, 1.0, 0.0]])
     np.testing.assert_allclose(mass, [8.0, 0.0, 1.0])
+
+
+@pytest.mark.parametrize("solver", SOLVERS)
+def test_float32_graph_meets_the_tolerance_of_the_float64_closed_form(corpus_affinity, solver: str, monkeypatch) -> None:
+    """Reference: Zhou et al. (2004) closed form, solved in float64 by numpy.linalg.solve.
+
+    A float32 S at the default tolerance runs CG's products in float32 (here on a small
+    graph, the size limit lowered) and checks the result in float64: the scores must still
+    be within a few tol of the float64 fixed point."""
+    monkeypatch.setattr(spreading, "FLOAT32_MIN_DOCUMENTS", 0)
+    w, labels = corpus_affinity
+    s32 = normalised_affinity(sp.csr_matrix(w, dtype=np.float32))
+    assert s32.dtype == np.float32
+    seeds = np.flatnonzero(labels >= 0)
+    y = seed_matrix(seeds, labels[seeds], w.shape[0], len(TOPICS))
+    alpha, tol = 0.99, 1e-6
+    expected = (1 - alpha) * np.linalg.solve(np.eye(w.shape[0]) - alpha * s32.toarray().astype(np.float64), y)
+    result = spread_labels(s32, y, alpha=alpha, tol=tol, max_iter=100_000, solver=solver)
+    assert result.converged and result.scores.dtype == np.float64
+    # The iteration's stopping rule bounds the step, not the error: (alpha / (1 - alpha)) * tol.
+    bound = tol if solver == "cg" else tol * alpha / (1 - alpha)
+    np.testing.assert_allclose(result.scores, expected, atol=10 * bound)
+
+
+@pytest.mark.parametrize("solver", SOLVERS)
+def test_a_close_initial_guess_reaches_the_same_fixed_point_in_fewer_products(solver: str) -> None:
+    """Reference: Zhou et al. (2004) closed form. Both solvers' errors shrink linearly from
+    their start (iterate: by (alpha S)^k; CG: its residual), so a guess a hundred times closer
+    than the default start (Y, or (1 - alpha) Y for CG) needs fewer products."""
+    n, alpha = 60, 0.95
+    s = normalised_affinity(_random_symmetric(n, seed=3, density=0.08))
+    y = seed_matrix(np.array([0, 7, 19, 33, 48]), np.array([0, 1, 1, 0, 1]), n, 2)
+    expected = (1 - alpha) * np.linalg.solve(np.eye(n) - alpha * s.toarray(), y)
+    default_start = y if solver == "iterate" else (1 - alpha) * y
+    guess = expected + 0.01 * (default_start - expected)
+    cold = spread_labels(s, y, alpha=alpha, tol=1e-12, max_iter=100_000, solver=solver)
+    warm = spread_labels(s, y, alpha=alpha, tol=1e-12, max_iter=100_000, solver=solver, initial=guess)
+    assert warm.converged and warm.iterations < cold.iterations
+    np.testing.assert_allclose(warm.scores, expected, atol=1e-9)
+    exact = spread_labels(s, y, alpha=alpha, tol=1e-12, solver=solver, initial=expected)
+    assert exact.iterations == 1  # already at the fixed point: one check, no step

@@ -14,7 +14,8 @@ vectors; it costs one fit on the seeds and one product over the collection.
 
 :func:`cross_check` re-runs both views with each fold of the seeds held out, giving every
 seed a prediction made without it: the basis for flagging possible mislabelled seeds and
-for an estimate of the run's accuracy.
+for an estimate of the run's accuracy. A fold costs one spread (started from the full
+run's solution) and one classifier fit; only the fold's own seeds are predicted.
 
 On dense vectors (sentence embeddings) the classifier is fitted on graph-smoothed features
 (:func:`smooth_features`): each document's vector averaged with its neighbourhood's, the
@@ -106,14 +107,18 @@ def classifier_probabilities(
     seed_classes: np.ndarray,
     n_classes: int,
     strength: float,
+    rows: np.ndarray | None = None,
 ) -> np.ndarray:
-    """Logistic regression fitted on the seed rows, probabilities for all rows.
+    """Logistic regression fitted on the seed rows, probabilities for all rows (or ``rows``).
 
     Categories absent from ``seed_classes`` (possible in cross-validation folds) get
-    probability 0. Returns (n, n_classes) float64.
+    probability 0. Returns (n, n_classes) float64, or (len(rows), n_classes) when ``rows``
+    is given: a held-out fold needs its own few rows only, and applying the model to them
+    alone saves the O(nnz) product over the collection.
     """
     present = np.unique(seed_classes)
-    out = np.zeros((vectors.shape[0], n_classes), dtype=np.float64)
+    target = vectors if rows is None else vectors[np.asarray(rows, dtype=np.int64)]
+    out = np.zeros((target.shape[0], n_classes), dtype=np.float64)
     if present.size == 1:
         out[:, present[0]] = 1.0
         return out
@@ -122,7 +127,7 @@ def classifier_probabilities(
     # on those columns gives the same model, about 3x faster on BANKING77 (measured).
     if sp.issparse(train):
         used = np.unique(sp.csr_matrix(train).indices)
-        train, vectors = train[:, used], sp.csr_matrix(vectors)[:, used]
+        train, target = train[:, used], sp.csr_matrix(target)[:, used]
     # newton-cg reaches the same optimum as lbfgs in a few Newton steps: ~7x faster on
     # BANKING77's 770 seeds x 77 categories (1.7 s against 12.8 s, measured).
     # Balanced class weights, as for the spread: with equal seed counts this is the plain fit.
@@ -131,7 +136,7 @@ def classifier_probabilities(
         # A handful of seeds can leave the solver a little short of its tolerance; the probabilities are fine.
         warnings.simplefilter("ignore", ConvergenceWarning)
         model.fit(train, seed_classes)
-    out[:, model.classes_] = model.predict_proba(vectors)
+    out[:, model.classes_] = model.predict_proba(target)
     return out
 
 
@@ -199,6 +204,10 @@ class Views:
     classifier: np.ndarray
     spread_iterations: int
 
+    def spread_scores(self) -> np.ndarray:
+        """(m, c) the spread scores behind ``graph``: graph * mass (clipped at 0, zero where unreached)."""
+        return self.graph * self.mass[:, None]
+
     def blend(self, graph_weight: float) -> np.ndarray:
         """Log-linear blend P ∝ P_graph^w * P_classifier^(1-w), rows summing to 1.
 
@@ -237,20 +246,39 @@ def compute_views(
     The classifier sees the vectors smoothed over the graph for
     ``settings.smoothing_steps(vectors)`` steps (:func:`smooth_features`).
     """
-    n = vectors.shape[0]
+    features = smooth_features(vectors, normalised_graph, settings.smoothing_steps(vectors))
+    return _views(features, normalised_graph, seed_rows, seed_classes, n_classes, settings)
+
+
+def _views(
+    features: sp.csr_matrix | np.ndarray,
+    normalised_graph: sp.csr_matrix,
+    seed_rows: np.ndarray,
+    seed_classes: np.ndarray,
+    n_classes: int,
+    settings: ModelSettings,
+    rows: np.ndarray | None = None,
+    initial: np.ndarray | None = None,
+) -> Views:
+    """:func:`compute_views` on features already smoothed, for every row or only ``rows``.
+
+    ``initial`` (n, c) is a guess of the spread scores to start the solver from.
+    """
+    n = features.shape[0]
     # Balanced: reviews add seeds unevenly (corrections cluster in the confused categories).
     y = seed_matrix(seed_rows, seed_classes, n, n_classes, balanced=True)
     spread = spread_labels(
         normalised_graph, y, alpha=settings.alpha, tol=settings.tol,
-        max_iter=settings.max_iter, solver=settings.solver,
+        max_iter=settings.max_iter, solver=settings.solver, initial=initial,
     )
     scores = np.clip(spread.scores, 0.0, None)
     if settings.class_mass_normalisation:
         share = np.bincount(seed_classes, minlength=n_classes) / max(1, len(seed_classes))
         scores = class_mass_normalise(scores, share)
-    graph_probs, mass = to_probabilities(scores)
-    features = smooth_features(vectors, normalised_graph, settings.smoothing_steps(vectors))
-    clf_probs = classifier_probabilities(features, seed_rows, seed_classes, n_classes, settings.classifier_strength)
+    graph_probs, mass = to_probabilities(scores if rows is None else scores[rows])
+    clf_probs = classifier_probabilities(
+        features, seed_rows, seed_classes, n_classes, settings.classifier_strength, rows=rows
+    )
     return Views(graph=graph_probs, mass=mass, classifier=clf_probs, spread_iterations=spread.iterations)
 
 
@@ -296,8 +324,15 @@ def cross_check(
     settings: ModelSettings,
     order_key: np.ndarray,
     folds: int = 5,
+    full_scores: np.ndarray | None = None,
 ) -> Views:
     """Held-out views for each seed: each fold predicted by models fitted without it.
+
+    Each fold spreads over the whole graph and fits the classifier again, but only the
+    fold's own seeds are predicted (classifier and probability rows). ``full_scores`` (n, c),
+    the spread scores of the run with every seed (:meth:`Views.spread_scores`), start each
+    fold's CG solver near its solution: the fixed point is the same, with ~15% fewer sparse
+    products (35 against 42 a fold, measured on 30,000 generated tickets).
 
     Returns
     -------
@@ -309,19 +344,49 @@ def cross_check(
     graph, clf = np.full((s, c), np.nan), np.full((s, c), np.nan)
     mass = np.full(s, np.nan)
     products = 0
+    # The smoothed features do not depend on the seeds: one smoothing serves every fold.
+    features = smooth_features(vectors, normalised_graph, settings.smoothing_steps(vectors))
     for f in range(min(folds, int(fold.max()) + 1 if fold.size else 0)):
         held = fold == f
         train = ~held
         if np.unique(seed_classes[train]).size < 2:
             continue
-        views = compute_views(vectors, normalised_graph, seed_rows[train], seed_classes[train], n_classes, settings)
-        products += views.spread_iterations
         learnable = np.isin(seed_classes[held], seed_classes[train])
         rows = np.flatnonzero(held)[learnable]
-        graph[rows] = views.graph[seed_rows[rows]]
-        clf[rows] = views.classifier[seed_rows[rows]]
-        mass[rows] = views.mass[seed_rows[rows]]
+        views = _views(
+            features, normalised_graph, seed_rows[train], seed_classes[train], n_classes, settings,
+            rows=seed_rows[rows], initial=_fold_guess(full_scores, seed_classes, train, settings.solver),
+        )
+        products += views.spread_iterations
+        graph[rows], clf[rows], mass[rows] = views.graph, views.classifier, views.mass
     return Views(graph=graph, mass=mass, classifier=clf, spread_iterations=products)
+
+
+def _fold_guess(
+    full_scores: np.ndarray | None, seed_classes: np.ndarray, train: np.ndarray, solver: str
+) -> np.ndarray | None:
+    """The full run's spread scores rescaled to a fold's balanced seed weights (a solver start).
+
+    The spread is linear in Y and the balanced Y scales each category's column by a weight
+    (:func:`seedsort.spreading.seed_matrix`), so the full solution with each column rescaled
+    to the fold's weight differs from the fold's solution only by the held-out seeds' share.
+    Only for CG: plain iteration from Y already has no error along S's leading eigenvector
+    (the slowest to decay at alpha near 1), which this guess would bring in.
+    """
+    if full_scores is None or solver != "cg":
+        return None
+
+    def weights(classes: np.ndarray) -> np.ndarray:
+        counts = np.bincount(classes, minlength=full_scores.shape[1]).astype(np.float64)
+        present = counts > 0
+        out = np.zeros(counts.size)
+        out[present] = (classes.size / present.sum()) / counts[present]
+        return out
+
+    full_w, fold_w = weights(seed_classes), weights(seed_classes[train])
+    with np.errstate(divide="ignore", invalid="ignore"):
+        scale = np.where(full_w > 0, fold_w / full_w, 0.0)
+    return full_scores * scale
 
 
 def choose_graph_weight(held_out: Views, labels: np.ndarray, grid: tuple[float, ...] = GRAPH_WEIGHT_GRID) -> float:

@@ -283,7 +283,8 @@ def sort_documents(
     if settings.cross_check_folds >= 2:
         progress("cross-check", 0, 1)
         held_views = cross_check(
-            vectors, graph, seed_rows, seed_classes, c, settings.model, order_key, settings.cross_check_folds
+            vectors, graph, seed_rows, seed_classes, c, settings.model, order_key, settings.cross_check_folds,
+            full_scores=views.spread_scores(),
         )
         progress("cross-check", 1, 1)
     else:

@@ -19,6 +19,11 @@ Two solvers reach that fixed point:
     sparse products than plain iteration when alpha is close to 1 (on BANKING77, ~40 instead
     of ~3,400 at alpha 0.99, measured).
 
+What makes a product cheap (see :func:`spread_labels`): the documents are renumbered by
+reverse Cuthill-McKee so each product reads the (n, c) block nearly in order; CG runs in
+float32 on a float32 S and is checked (and if need be finished) in float64; and a solver
+can start from a guess, e.g. a cross-check fold from the full run's solution.
+
 Class mass normalisation (Zhu, Ghahramani & Lafferty 2003) rescales each category's column
 so its total mass matches the category's share among the seeds, countering categories with
 more seeds or denser neighbourhoods soaking up documents.
@@ -32,6 +37,7 @@ from dataclasses import dataclass
 
 import numpy as np
 import scipy.sparse as sp
+from scipy.sparse.csgraph import reverse_cuthill_mckee
 
 from .errors import SpreadingNotConvergedWarning
 
@@ -96,9 +102,11 @@ def seed_matrix(
     return y
 
 
-def _iterate(s: sp.csr_matrix, y: np.ndarray, alpha: float, tol: float, max_iter: int) -> SpreadResult:
+def _iterate(
+    s: sp.csr_matrix, y: np.ndarray, alpha: float, tol: float, max_iter: int, initial: np.ndarray | None = None
+) -> SpreadResult:
     base = (1.0 - alpha) * y
-    f = y.copy()
+    f = y.copy() if initial is None else np.array(initial, dtype=y.dtype)
     for iteration in range(1, max_iter + 1):
         nxt = alpha * (s @ f) + base
         change = float(np.max(np.abs(nxt - f))) if f.size else 0.0
@@ -108,42 +116,71 @@ def _iterate(s: sp.csr_matrix, y: np.ndarray, alpha: float, tol: float, max_iter
     return SpreadResult(f, max_iter, False)
 
 
-def _conjugate_gradient(s: sp.csr_matrix, y: np.ndarray, alpha: float, tol: float, max_iter: int) -> SpreadResult:
+def _conjugate_gradient(
+    s: sp.csr_matrix, y: np.ndarray, alpha: float, tol: float, max_iter: int, initial: np.ndarray | None = None
+) -> SpreadResult:
     """Conjugate gradient on every category's column at once (independent CG runs, vectorised).
 
     Each step is one sparse product with the whole (n, c) block, so the cost per step is
     the same as one step of plain iteration, and far fewer steps are needed. Stops when
-    every column's residual norm is below ``tol``.
+    every column's residual norm is below ``tol``. Works in the dtype of ``y`` (float32 or
+    float64); the per-column dot products accumulate in float64.
     """
     rhs = (1.0 - alpha) * y
-    # Start from the rhs itself: the first term of the Neumann series of the inverse.
-    x = rhs.copy()
+    # Without a guess, start from the rhs itself: the first term of the Neumann series of the inverse.
+    x = (rhs if initial is None else initial).astype(y.dtype, copy=True)
     r = rhs - (x - alpha * (s @ x))
-    p = r.copy()
-    rs = np.einsum("ij,ij->j", r, r)
+    rs = _column_dots(r, r)
     if not rs.size or np.sqrt(rs.max()) < tol:
         return SpreadResult(x, 1, True)
+    p = r.copy()
+    scratch = np.empty_like(x)
+    # In-place updates: at n ~ 1e5 the (n, c) temporaries of the plain expressions cost a
+    # quarter of each step's time next to the sparse product.
     for step in range(1, max_iter + 1):
-        ap = p - alpha * (s @ p)
-        curvature = np.einsum("ij,ij->j", p, ap)
+        ap = s @ p
+        ap *= -alpha
+        ap += p
+        curvature = _column_dots(p, ap)
         with np.errstate(divide="ignore", invalid="ignore"):
-            length = np.where(curvature > 0, rs / curvature, 0.0)
-        x += p * length
-        r -= ap * length
-        rs_next = np.einsum("ij,ij->j", r, r)
+            length = np.where(curvature > 0, rs / curvature, 0.0).astype(y.dtype)
+        x += np.multiply(p, length, out=scratch)
+        r -= np.multiply(ap, length, out=scratch)
+        rs_next = _column_dots(r, r)
         if np.sqrt(rs_next.max()) < tol:
             return SpreadResult(x, step + 1, True)
         with np.errstate(divide="ignore", invalid="ignore"):
-            p = r + p * np.where(rs > 0, rs_next / rs, 0.0)
+            p *= np.where(rs > 0, rs_next / rs, 0.0).astype(y.dtype)
+        p += r
         rs = rs_next
     return SpreadResult(x, max_iter + 1, False)
 
 
-#: Solver name -> function; all reach the same fixed point.
-SOLVERS: dict[str, Callable[[sp.csr_matrix, np.ndarray, float, float, int], SpreadResult]] = {
+def _column_dots(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """Dot product of each column pair, accumulated in float64 (float32 sums drift at n ~ 1e5)."""
+    return np.einsum("ij,ij->j", a, b, dtype=np.float64)
+
+
+#: Solver name -> function; all reach the same fixed point. Each takes (S, Y, alpha, tol,
+#: max_iter, initial guess or None) and works in the dtype of Y.
+SOLVERS: dict[str, Callable[[sp.csr_matrix, np.ndarray, float, float, int, np.ndarray | None], SpreadResult]] = {
     "iterate": _iterate,
     "cg": _conjugate_gradient,
 }
+
+#: Tolerances at or above this are first reached in float32 (then checked in float64).
+FLOAT32_TOLERANCE = 1e-7
+#: Graphs with fewer documents stay in float64 throughout: their products take
+#: milliseconds, and float32 rounding (~1e-7, its path depending on the order of the
+#: documents) would put an order-dependent difference of about ``tol`` into every score,
+#: where float64 keeps two orders of the same collection to ~1e-12 of each other
+#: (tests/test_sorting.py checks results against a shuffled collection).
+FLOAT32_MIN_DOCUMENTS = 20_000
+#: Solvers that may run in float32 first. CG's recurrence keeps shrinking its residual in
+#: float32 and the float64 check corrects the rest; plain iteration's step cannot fall much
+#: below float32's spacing of the largest score (~6e-8 of it), so with heavy seed weights it
+#: could run to its cap before stopping.
+FLOAT32_SOLVERS = frozenset({"cg"})
 
 
 def spread_labels(
@@ -154,13 +191,23 @@ def spread_labels(
     tol: float = 1e-6,
     max_iter: int = 1000,
     solver: str = "cg",
+    initial: np.ndarray | None = None,
 ) -> SpreadResult:
     """Spread seed labels Y over the normalised graph S.
+
+    The documents are first renumbered by reverse Cuthill-McKee (scipy.sparse.csgraph), so
+    neighbours sit close in memory: each sparse product then reads the (n, c) block nearly
+    in order (2.4x faster products on 30,000 generated tickets, measured; the ordering costs
+    one pass over S). When S is float32 with at least :data:`FLOAT32_MIN_DOCUMENTS` rows,
+    ``tol`` at least :data:`FLOAT32_TOLERANCE` and the solver is CG, it runs in float32 (products ~1.5x faster, measured) and then continues in
+    float64 from that point; the float64 run normally stops after its first residual check
+    (one product), and only carries on if float32 rounding left the tolerance unmet. The
+    stopping rule is therefore always met in float64, whatever the precision used.
 
     Parameters
     ----------
     s:
-        (n, n) CSR, the output of :func:`normalised_affinity`.
+        (n, n) CSR, the output of :func:`normalised_affinity` (float32 or float64).
     y:
         (n, c) one-hot seed matrix (see :func:`seed_matrix`).
     alpha:
@@ -171,6 +218,14 @@ def spread_labels(
         Iteration cap; reaching it warns :class:`SpreadingNotConvergedWarning`.
     solver:
         ``"cg"`` or ``"iterate"`` (see module docstring).
+    initial:
+        (n, c) a guess of the solution to start from (e.g. a related run's scores); the
+        fixed point is the same, fewer products are needed the closer the guess.
+
+    Returns
+    -------
+    SpreadResult with float64 scores (n, c); ``iterations`` counts the sparse products of
+    both precisions.
     """
     if not 0.0 <= alpha < 1.0:
         raise ValueError(f"alpha must be in [0, 1), got {alpha}")
@@ -178,7 +233,21 @@ def spread_labels(
         run = SOLVERS[solver]
     except KeyError:
         raise ValueError(f"unknown solver {solver!r}; choose one of {sorted(SOLVERS)}") from None
-    result = run(s.astype(np.float64) if s.dtype != np.float64 else s, np.asarray(y, dtype=np.float64), alpha, tol, max_iter)
+    y = np.asarray(y, dtype=np.float64)
+    order = reverse_cuthill_mckee(sp.csr_matrix(s), symmetric_mode=True) if s.shape[0] else np.zeros(0, dtype=np.int32)
+    s_ordered = sp.csr_matrix(s)[order][:, order]
+    y_ordered = y[order]
+    guess = None if initial is None else np.asarray(initial, dtype=np.float64)[order]
+    products, left = 0, max_iter
+    if (
+        s_ordered.dtype == np.float32 and tol >= FLOAT32_TOLERANCE and solver in FLOAT32_SOLVERS
+        and s_ordered.shape[0] >= FLOAT32_MIN_DOCUMENTS
+    ):
+        rough = run(s_ordered, y_ordered.astype(np.float32), alpha, tol, max_iter, guess)
+        products, left = rough.iterations, max(1, max_iter - rough.iterations)
+        guess = rough.scores.astype(np.float64)
+        del rough  # at 1M documents x 77 categories its float32 scores hold 300 MB
+    result = run(s_ordered.astype(np.float64), y_ordered, alpha, tol, left, guess)
     if not result.converged:
         warnings.warn(
             f"Label spreading stopped at its cap of {max_iter} iterations before reaching "
@@ -186,7 +255,9 @@ def spread_labels(
             SpreadingNotConvergedWarning,
             stacklevel=2,
         )
-    return result
+    scores = np.empty_like(result.scores)
+    scores[order] = result.scores
+    return SpreadResult(scores, products + result.iterations, result.converged)
 
 
 def class_mass_normalise(scores: np.ndarray, seed_share: np.ndarray) -> np.ndarray:
