@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import os
 import time
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import asdict, dataclass, field
 from pathlib import Path
 
@@ -210,12 +210,13 @@ def _quick_result(
         i = earlier.get(documents[int(row)].id)
         if i is not None and checked.seed_label[i] == label:
             seed_check[k], mislabel[k] = checked.cross_checked[i], checked.possible_mislabel[i]
-    threshold = record.get("out_of_scope_threshold")
+    stored = record.get("out_of_scope_threshold")
+    threshold = None if stored is None else float(stored)  # type: ignore[arg-type]
     return _finish(
         documents, seeds, settings, views, prepared, timings, collection,
         weight=float(record.get("graph_weight", DEFAULT_GRAPH_WEIGHT)),
         temperature=float(record.get("temperature", 1.0)),
-        threshold=None if threshold is None else float(threshold),  # type: ignore[arg-type]
+        threshold_of=lambda components, degree: threshold,
         seed_check=seed_check,
         mislabel=mislabel,
         estimate=checked.estimated_accuracy if same_categories else None,
@@ -303,26 +304,23 @@ def sort_documents(
     temperature = fit_temperature(held_out_by_id, seed_classes)
     checked_rows = ~np.isnan(held_out).any(axis=1)
     seed_check = np.where(checked_rows, np.nan_to_num(held_out, nan=-1.0).argmax(axis=1), -1)
-    blended = views.blend(weight)
 
-    # Out-of-scope: score every document and every held-out seed on the same scale, flag
-    # documents above the chosen quantile of the held-out seeds.
-    degree = degree_of(prepared.affinity)
-    components = scope_components(blended, views.mass, degree)
-    held_components = scope_components(
-        np.nan_to_num(held_out_by_id, nan=1.0), held_views.mass, degree[seed_rows]
-    )
-    held_components[np.isnan(held_out_by_id).any(axis=1)] = np.nan
-    threshold = (
-        scope_threshold(out_of_scope_scores(held_components, components), settings.out_of_scope_quantile)
-        if settings.out_of_scope_quantile is not None
-        else None
-    )
+    def threshold_of(components: np.ndarray, degree: np.ndarray) -> float | None:
+        """Out-of-scope threshold: score every held-out seed on the documents' scale and take
+        the chosen quantile of those scores."""
+        if settings.out_of_scope_quantile is None:
+            return None
+        held_components = scope_components(
+            np.nan_to_num(held_out_by_id, nan=1.0), held_views.mass, degree[seed_rows]
+        )
+        held_components[np.isnan(held_out_by_id).any(axis=1)] = np.nan
+        return scope_threshold(out_of_scope_scores(held_components, components), settings.out_of_scope_quantile)
+
     return _finish(
         documents, seeds, settings, views, prepared, timings, collection,
         weight=weight,
         temperature=temperature,
-        threshold=threshold,
+        threshold_of=threshold_of,
         seed_check=seed_check,
         mislabel=_possible_mislabels(held_out, seeds.classes),
         estimate=float(np.mean(seed_check[checked_rows] == seeds.classes[checked_rows])) if checked_rows.any() else None,
@@ -341,7 +339,7 @@ def _finish(
     *,
     weight: float,
     temperature: float,
-    threshold: float | None,
+    threshold_of: Callable[[np.ndarray, np.ndarray], float | None],
     seed_check: np.ndarray,
     mislabel: np.ndarray,
     estimate: float | None,
@@ -349,6 +347,8 @@ def _finish(
 ) -> SortResult:
     """Blend, calibrate, decide each document's status and assemble the result.
 
+    ``threshold_of(components, degree)`` gives the out-of-scope threshold from the
+    documents' scope components and graph degrees (computed here once).
     ``seed_check`` and ``mislabel`` are per seed, in ``seeds.rows`` order: the category a
     model without the seed predicts (-1 when unchecked), and whether it clearly disputes it.
     """
@@ -374,9 +374,11 @@ def _finish(
     possible_mislabel = np.zeros(n, dtype=bool)
     possible_mislabel[seeds.rows] = mislabel
 
+    # Out-of-scope: every document scored on one scale; the threshold comes from the seeds.
     degree = degree_of(affinity)
     components = scope_components(blended, views.mass, degree)
     scope = out_of_scope_scores(components, components)
+    threshold = threshold_of(components, degree)
 
     reached = seed_reach(affinity, seeds.rows)
     mass = views.mass
