@@ -17,7 +17,6 @@ from __future__ import annotations
 import json
 import math
 import os
-import tempfile
 from collections.abc import Iterator
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -266,31 +265,22 @@ def write_results(result: SortResult, path: str | os.PathLike[str], fmt: str | N
     Returns the path written.
     """
     # Imported here: export builds on this module, and pyarrow is loaded only for Parquet.
-    from .export import require_parquet, results_table, write_parquet
+    from .export import require_parquet, results_table, write_atomically, write_parquet
 
     path = Path(path)
     fmt = result_format(path, fmt)
     if fmt == "parquet":
         require_parquet()
-    if path.is_dir():
-        raise InputError(f"Results path {path} is a folder; give a file name ending in .csv, .jsonl or .parquet.")
-    directory = path.parent if str(path.parent) else Path(".")
-    if not directory.is_dir():
-        raise InputError(f"Folder {directory} for the results does not exist; create it first.")
-    fd, tmp = tempfile.mkstemp(prefix=".seedsort-", suffix=".part", dir=directory)
-    try:
+
+    def write(tmp: Path) -> None:
         if fmt == "parquet":
-            os.close(fd)
             write_parquet(results_table(result), tmp)
-        else:
-            with os.fdopen(fd, "w", encoding="utf-8", newline="") as handle:
-                if fmt == "csv":
-                    result.to_frame().to_csv(handle, index=False)
-                else:
-                    for rec in result.records():
-                        handle.write(json.dumps(rec, ensure_ascii=False) + "\n")
-        os.replace(tmp, path)
-    except BaseException:
-        Path(tmp).unlink(missing_ok=True)
-        raise
-    return path
+            return
+        with open(tmp, "w", encoding="utf-8", newline="") as handle:
+            if fmt == "csv":
+                result.to_frame().to_csv(handle, index=False)
+            else:
+                for rec in result.records():
+                    handle.write(json.dumps(rec, ensure_ascii=False) + "\n")
+
+    return write_atomically(path, write, "results")

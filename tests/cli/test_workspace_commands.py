@@ -69,6 +69,14 @@ def test_cli_vector_modes_match_the_library() -> None:
     assert VECTOR_MODES == LIBRARY_VECTOR_MODES
 
 
+def test_report_statuses_match_the_library() -> None:
+    """The report keeps its own copy so that printing it never loads pandas."""
+    from seedsort.cli._report import STATUSES as REPORT_STATUSES
+    from seedsort.results import STATUSES
+
+    assert REPORT_STATUSES == STATUSES
+
+
 def test_first_sort_creates_the_workspace_and_says_where(pile: Path, tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
     workspace = tmp_path / "w.sqlite"
     code = main(["sort", str(pile / "queries"), "--seeds", str(pile / "seeds.csv"), "--out", str(tmp_path / "r.csv"),

@@ -308,11 +308,16 @@ def _run_sort(args: argparse.Namespace, reporter: Reporter) -> int:
     return EXIT_OK
 
 
+def _require_workspace_target(args: argparse.Namespace) -> None:
+    """review, suggest and export work on a workspace: named directly or by its collection."""
+    if args.path is None and args.workspace is None:
+        raise _UsageError("give the collection (as given to 'seedsort sort') or --workspace FILE")
+
+
 def _open_session(args: argparse.Namespace, reporter: Reporter, *, order: str, category: str | None, limit: int):  # type: ignore[no-untyped-def]
     from ..workflow import open_review
 
-    if args.path is None and args.workspace is None:
-        raise _UsageError("give the collection (as given to 'seedsort sort') or --workspace FILE")
+    _require_workspace_target(args)
     with reporter.progress() as on_progress:
         return open_review(
             args.path, workspace=args.workspace, order=order, category=category, limit=limit, on_progress=on_progress
@@ -355,8 +360,7 @@ def _run_export(args: argparse.Namespace, reporter: Reporter) -> int:
         raise _UsageError("say what to export: --out FILE, --history FILE and/or --copy-to DIR")
     if args.dry_run and not args.copy_to:
         raise _UsageError("--dry-run goes with --copy-to")
-    if args.path is None and args.workspace is None:
-        raise _UsageError("give the collection (as given to 'seedsort sort') or --workspace FILE")
+    _require_workspace_target(args)
     for target in (args.out, args.history):
         if target:
             result_format(target)  # fail before the work, not after it
