@@ -89,7 +89,7 @@ def main() -> None:
         seeds = np.flatnonzero(result.status == "seed")
         y = seed_matrix(seeds, result.seed_label[seeds], len(result), len(result.categories), balanced=True)
         started = time.perf_counter()
-        spread = spread_labels(session._prepared.graph, y)
+        spread = spread_labels(session.prepared.graph, y)
         spread_only = time.perf_counter() - started
         session.close()
 

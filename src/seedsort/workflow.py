@@ -319,6 +319,20 @@ class WorkspaceReview:
         """The latest run's result."""
         return self._result
 
+    @property
+    def workspace(self) -> Workspace:
+        return self._store
+
+    @property
+    def documents(self) -> list[Document]:
+        """The documents under review, as the workspace holds them."""
+        return self._documents
+
+    @property
+    def prepared(self) -> Prepared:
+        """The cached vectors and graph the session re-spreads over."""
+        return self._prepared
+
     def queue(self) -> list[ReviewItem]:
         return [item for item in self._queue if item.id not in self._decided]
 
@@ -468,7 +482,7 @@ def current_state(
         when there is no workspace or no run in it yet.
     """
     with open_review(collection, workspace=workspace, limit=0, on_progress=on_progress) as session:
-        store = session._store
+        store = session.workspace
         root = store.get_meta("collection_root") or ""
         history = [
             LabelEvent(
@@ -477,7 +491,7 @@ def current_state(
             )
             for event in store.history()
         ]
-        texts = {doc.id: doc.text for doc in session._documents}
+        texts = {doc.id: doc.text for doc in session.documents}
         return WorkspaceState(replace(session.result, root=root), root, texts, history)
 
 
