@@ -104,3 +104,53 @@ def test_describe_names_the_blocks() -> None:
     """Common practice: the run record says how vectors were made."""
     text = VectorSettings(stem_language="german").describe()
     assert text == "tfidf, word 1-2-grams, char 2-5-grams, german stemming"
+
+
+# Character n-grams are counted per distinct word (vectors._char_block_counts); the whole
+# block must still equal scikit-learn's vectorisers run on the texts themselves, exactly.
+EDGE_TEXTS = [
+    *TEXTS,
+    "   ",  # whitespace only
+    "ΟΔΟΣ Σ aaa a İstanbul",  # context-dependent lower-casing (final sigma), dotted capital I
+    "x\u00a0y\tz\n\nw",  # non-breaking space, tab, newlines
+    "aa aa aa aaaaaa",  # repeated words; a word repeating its own n-grams
+]
+
+
+def _banking77_texts(count: int) -> list[str]:
+    """BANKING77 training texts (Casanueva et al. 2020, CC BY 4.0; tests/data/banking77)."""
+    import pandas as pd
+    from pathlib import Path
+
+    frame = pd.read_csv(Path(__file__).parent / "data" / "banking77" / "train.csv")
+    return frame["text"].head(count).tolist()
+
+
+@pytest.mark.parametrize("mode", ["tfidf", "hashed"])
+def test_char_block_equals_sklearn_exactly(mode: str) -> None:
+    """Reference: sklearn TfidfVectorizer(analyzer="char_wb", ngram_range=(2, 5), sublinear_tf)
+    in tfidf mode; HashingVectorizer(analyzer="char_wb", 2**20 columns, no sign, no norm) +
+    TfidfTransformer(sublinear_tf) in hashed mode; both L2-normalised, on BANKING77 texts plus
+    edge cases. Same columns and stored entries; values equal to float32 rounding (vectorise
+    normalises the joined row once more, which can move a value by one unit in the last place)."""
+    from sklearn.feature_extraction.text import HashingVectorizer, TfidfTransformer
+    from sklearn.preprocessing import normalize
+
+    texts = _banking77_texts(2000) + EDGE_TEXTS
+    ours = vectorise(texts, VectorSettings(mode=mode, word_ngrams=None))
+    if mode == "tfidf":
+        ref = TfidfVectorizer(
+            analyzer="char_wb", ngram_range=(2, 5), lowercase=True, sublinear_tf=True, dtype=np.float32
+        ).fit_transform(texts)
+    else:
+        hashed = HashingVectorizer(
+            analyzer="char_wb", ngram_range=(2, 5), n_features=2**20, alternate_sign=False, norm=None,
+            dtype=np.float32,
+        ).transform(texts)
+        ref = TfidfTransformer(sublinear_tf=True).fit_transform(hashed)
+    ref = normalize(ref.astype(np.float32), norm="l2")
+    ref.sort_indices()
+    assert ours.shape == ref.shape
+    np.testing.assert_array_equal(ours.indptr, ref.indptr)
+    np.testing.assert_array_equal(ours.indices, ref.indices)
+    np.testing.assert_allclose(ours.data, ref.data, rtol=1e-6, atol=0)
