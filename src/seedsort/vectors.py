@@ -184,7 +184,8 @@ def _char_block_counts(block: object, texts: Sequence[str]) -> sp.csr_matrix:
     words' counts: (documents x words) @ (words x n-grams). Ticket-like collections repeat
     the same few thousand words, so cutting each distinct word once (by the block's own
     scikit-learn analyser, fitted on the distinct words) instead of every occurrence makes
-    this block ~7x faster at 30,000 tickets (measured). The result equals the block
+    this block ~4x faster at 30,000 generated tickets (14.3 s -> 3.7 s; hashed mode 10.1 s ->
+    1.7 s; measured, loaded machine). The result equals the block
     applied to the texts themselves: same vocabulary, same column order (tested against
     scikit-learn's TfidfVectorizer and HashingVectorizer).
     """
