@@ -13,6 +13,7 @@ on sentence embeddings.
 
 from __future__ import annotations
 
+import dataclasses
 from pathlib import Path
 
 import numpy as np
@@ -22,6 +23,7 @@ import scipy.sparse as sp
 from sklearn.linear_model import LogisticRegression
 
 from seedsort.combine import (
+    CROSS_CHECK_TOLERANCE,
     DENSE_FEATURE_SMOOTHING,
     ModelSettings,
     classifier_probabilities,
@@ -137,7 +139,8 @@ def test_folds_are_stratified_and_follow_the_order_key() -> None:
 
 def test_cross_check_predicts_each_seed_without_it(model_inputs) -> None:
     """Reference: k-fold cross-validation (common practice): a held-out seed's row equals the
-    prediction of a model fitted on the other folds only; a lone seed of its category is NaN."""
+    prediction of a model fitted on the other folds only (spread to the folds' tolerance,
+    CROSS_CHECK_TOLERANCE); a lone seed of its category is NaN."""
     vectors, graph = model_inputs
     rows = np.append(SEED_ROWS, 39)
     classes = np.append(SEED_CLASSES, 4)  # category 4 has one seed: nothing to learn it from
@@ -147,7 +150,8 @@ def test_cross_check_predicts_each_seed_without_it(model_inputs) -> None:
     folds = fold_of_each_seed(classes, key, 3)
     for f in range(3):
         train = folds != f
-        pred = predict(vectors, graph, rows[train], classes[train], 5, settings)
+        fold_settings = dataclasses.replace(settings, tol=CROSS_CHECK_TOLERANCE)
+        pred = predict(vectors, graph, rows[train], classes[train], 5, fold_settings)
         for i in np.flatnonzero(~train):
             if classes[i] == 4:
                 assert np.isnan(held.graph[i]).all() and np.isnan(held.classifier[i]).all()
@@ -281,7 +285,7 @@ def test_cross_check_started_from_the_full_run_reaches_the_same_held_out_views(m
     starts, not the fixed point, so the held-out views agree to within the solver tolerance."""
     vectors, graph = model_inputs
     key = np.array([f"{r:03d}" for r in SEED_ROWS], dtype=object)
-    settings = ModelSettings(graph_weight=0.5, tol=1e-10)
+    settings = ModelSettings(graph_weight=0.5, tol=1e-10, cross_check_tol=1e-10)
     full = compute_views(vectors, graph, SEED_ROWS, SEED_CLASSES, 4, settings)
     cold = cross_check(vectors, graph, SEED_ROWS, SEED_CLASSES, 4, settings, key, folds=3)
     warm = cross_check(vectors, graph, SEED_ROWS, SEED_CLASSES, 4, settings, key, folds=3, full_scores=full.spread_scores())
