@@ -154,3 +154,25 @@ def test_char_block_equals_sklearn_exactly(mode: str) -> None:
     np.testing.assert_array_equal(ours.indptr, ref.indptr)
     np.testing.assert_array_equal(ours.indices, ref.indices)
     np.testing.assert_allclose(ours.data, ref.data, rtol=1e-6, atol=0)
+
+
+@pytest.mark.parametrize("ngram_range", [(1, 2), (1, 1), (2, 2)])
+def test_word_block_equals_sklearn_exactly(ngram_range: tuple[int, int]) -> None:
+    """Reference: sklearn TfidfVectorizer(analyzer="word", token_pattern=r"(?u)\\b\\w+\\b",
+    sublinear_tf=True), L2-normalised, on BANKING77 texts plus edge cases (words that are
+    prefixes of others and underscores, which the sorted vocabulary must order as sklearn
+    does). Same columns and stored entries; values equal to float32 rounding."""
+    from sklearn.preprocessing import normalize
+
+    texts = _banking77_texts(2000) + EDGE_TEXTS + ["ab abc a a_b a b", "éa e a_ _ 1 10 1a"]
+    ours = vectorise(texts, VectorSettings(word_ngrams=ngram_range, char_ngrams=None))
+    ref = TfidfVectorizer(
+        analyzer="word", ngram_range=ngram_range, token_pattern=r"(?u)\b\w+\b", lowercase=True,
+        sublinear_tf=True, dtype=np.float32,
+    ).fit_transform(texts)
+    ref = normalize(ref.astype(np.float32), norm="l2")
+    ref.sort_indices()
+    assert ours.shape == ref.shape
+    np.testing.assert_array_equal(ours.indptr, ref.indptr)
+    np.testing.assert_array_equal(ours.indices, ref.indices)
+    np.testing.assert_allclose(ours.data, ref.data, rtol=1e-6, atol=0)
