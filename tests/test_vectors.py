@@ -176,3 +176,15 @@ def test_word_block_equals_sklearn_exactly(ngram_range: tuple[int, int]) -> None
     np.testing.assert_array_equal(ours.indptr, ref.indptr)
     np.testing.assert_array_equal(ours.indices, ref.indices)
     np.testing.assert_allclose(ours.data, ref.data, rtol=1e-6, atol=0)
+
+
+def test_progress_reaches_every_document_once_per_bar() -> None:
+    """The vectors bar (common practice for progress reporting: monotone, ends at the total)
+    counts documents across both n-gram blocks and ends at the collection's size."""
+    texts = _banking77_texts(45_000 // 10) * 10  # more than one tokenising chunk
+    seen: list[tuple[str, int, int | None]] = []
+    vectorise(texts, on_progress=lambda stage, done, total: seen.append((stage, done, total)))
+    assert {stage for stage, _, _ in seen} == {"vectors"}
+    assert all(total == len(texts) for _, _, total in seen)
+    done = [d for _, d, _ in seen]
+    assert done == sorted(done) and done[-1] == len(texts) and len(done) >= 4

@@ -162,14 +162,16 @@ _TOKEN_CHUNK = 20_000
 
 
 def _token_ids(
-    texts: Sequence[str], tokenize: Callable[[str], list[str]]
+    texts: Sequence[str],
+    tokenize: Callable[[str], list[str]],
+    report: Callable[[int], None] = lambda done: None,
 ) -> tuple[np.ndarray, np.ndarray, list[str]]:
     """Every text's tokens as integer ids: (ids, indptr, distinct tokens in order of first use).
 
     Document i's tokens are ``ids[indptr[i]:indptr[i + 1]]``. The texts are tokenised a
     chunk at a time and looked up through C-level ``map``/``dict`` calls, with a Python-level
     step only per distinct new token (~3x faster than one ``setdefault`` per token at 30,000
-    generated tickets, measured).
+    generated tickets, measured). ``report(done)`` is called after each chunk.
     """
     index: dict[str, int] = {}
     chunks: list[np.ndarray] = []
@@ -182,6 +184,7 @@ def _token_ids(
             if token not in index:
                 index[token] = len(index)
         chunks.append(np.fromiter(map(index.__getitem__, flat), dtype=np.int64, count=len(flat)))
+        report(start + len(per_text))
     indptr = np.zeros(len(texts) + 1, dtype=np.int64)
     np.cumsum(lengths, out=indptr[1:])
     ids = np.concatenate(chunks) if chunks else np.zeros(0, dtype=np.int64)
@@ -196,13 +199,13 @@ def _lower_words(text: str) -> list[str]:
     return _WORD.findall(text.lower())
 
 
-def _word_counts(texts: Sequence[str]) -> tuple[sp.csr_matrix, list[str]]:
+def _word_counts(texts: Sequence[str], report: Callable[[int], None]) -> tuple[sp.csr_matrix, list[str]]:
     """Documents x distinct whitespace-separated lower-cased words, as counts.
 
     The words are those scikit-learn's ``char_wb`` analyser pads and cuts into n-grams
     (``text.lower().split()``), in order of first appearance. Cost: linear in the text.
     """
-    word_ids, indptr, words = _token_ids(texts, _lower_split)
+    word_ids, indptr, words = _token_ids(texts, _lower_split, report)
     counts = sp.csr_matrix(
         (np.ones(word_ids.size, dtype=np.int64), word_ids, indptr), shape=(len(texts), len(words))
     )
@@ -210,7 +213,7 @@ def _word_counts(texts: Sequence[str]) -> tuple[sp.csr_matrix, list[str]]:
     return counts, words
 
 
-def _char_block_counts(block: object, texts: Sequence[str]) -> sp.csr_matrix:
+def _char_block_counts(block: object, texts: Sequence[str], report: Callable[[int], None]) -> sp.csr_matrix:
     """Character n-gram counts (``char_wb``) of every text, each distinct word cut only once.
 
     ``char_wb`` n-grams never cross a word boundary, so a text's counts are the sum of its
@@ -222,7 +225,7 @@ def _char_block_counts(block: object, texts: Sequence[str]) -> sp.csr_matrix:
     applied to the texts themselves: same vocabulary, same column order (tested against
     scikit-learn's TfidfVectorizer and HashingVectorizer).
     """
-    per_document, words = _word_counts(texts)
+    per_document, words = _word_counts(texts, report)
     if isinstance(block, HashingVectorizer):
         per_word = block.transform(words)
     else:
@@ -232,7 +235,9 @@ def _char_block_counts(block: object, texts: Sequence[str]) -> sp.csr_matrix:
     return counts.astype(np.float32)
 
 
-def _word_ngram_counts(texts: Sequence[str], ngram_range: tuple[int, int]) -> sp.csr_matrix:
+def _word_ngram_counts(
+    texts: Sequence[str], ngram_range: tuple[int, int], report: Callable[[int], None]
+) -> sp.csr_matrix:
     """Word 1-2-gram counts equal to scikit-learn's CountVectorizer(analyzer="word",
     token_pattern=r"(?u)\\b\\w+\\b", lowercase=True), vocabulary in its sorted order.
 
@@ -244,7 +249,7 @@ def _word_ngram_counts(texts: Sequence[str], ngram_range: tuple[int, int]) -> sp
     "a" as (a, nothing) (common practice for composite keys; tested against scikit-learn).
     """
     low, high = ngram_range
-    token_ids, indptr, words = _token_ids(texts, _lower_words)
+    token_ids, indptr, words = _token_ids(texts, _lower_words, report)
     n_docs, n_words = len(texts), len(words)
     doc_of = np.repeat(np.arange(n_docs, dtype=np.int64), np.diff(indptr))
     rank = np.empty(n_words, dtype=np.int64)
@@ -252,7 +257,9 @@ def _word_ngram_counts(texts: Sequence[str], ngram_range: tuple[int, int]) -> sp
     # Each n-gram as a key (rank of first word, rank of second word + 1, or 0 for a unigram).
     firsts, seconds, docs = [], [], []
     if low <= 1:
-        firsts.append(rank[token_ids]), seconds.append(np.zeros(token_ids.size, np.int64)), docs.append(doc_of)
+        firsts.append(rank[token_ids])
+        seconds.append(np.zeros(token_ids.size, np.int64))
+        docs.append(doc_of)
     if high >= 2:
         same_doc = doc_of[1:] == doc_of[:-1]
         firsts.append(rank[token_ids[:-1][same_doc]])
@@ -268,7 +275,10 @@ def _word_ngram_counts(texts: Sequence[str], ngram_range: tuple[int, int]) -> sp
     return counts.astype(np.float32)
 
 
-def _fit_block(block: object, texts: Sequence[str]) -> sp.csr_matrix:
+def _fit_block(
+    block: object, texts: Sequence[str], report: Callable[[int], None] = lambda done: None
+) -> sp.csr_matrix:
+    """One n-gram block's L2-normalised TF-IDF rows; ``report(documents_done)`` as it goes."""
     char_wb = getattr(block, "analyzer", None) == "char_wb"
     fast_words = (
         isinstance(block, TfidfVectorizer) and block.analyzer == "word"
@@ -276,10 +286,10 @@ def _fit_block(block: object, texts: Sequence[str]) -> sp.csr_matrix:
     )
     try:
         if isinstance(block, HashingVectorizer):
-            counts = _char_block_counts(block, texts) if char_wb else block.transform(texts)
+            counts = _char_block_counts(block, texts, report) if char_wb else block.transform(texts)
             matrix = TfidfTransformer(sublinear_tf=True).fit_transform(counts)
         elif fast_words:
-            counts = _word_ngram_counts(texts, tuple(block.ngram_range))  # type: ignore[attr-defined]
+            counts = _word_ngram_counts(texts, tuple(block.ngram_range), report)  # type: ignore[attr-defined]
             if not counts.shape[1]:
                 raise ValueError("empty vocabulary")
             matrix = TfidfTransformer(sublinear_tf=True).fit(counts).transform(counts, copy=False)
@@ -287,7 +297,7 @@ def _fit_block(block: object, texts: Sequence[str]) -> sp.csr_matrix:
             counting = CountVectorizer(
                 analyzer="char_wb", ngram_range=block.ngram_range, lowercase=True, dtype=np.int64  # type: ignore[attr-defined]
             )
-            counts = _char_block_counts(counting, texts)
+            counts = _char_block_counts(counting, texts, report)
             matrix = TfidfTransformer(sublinear_tf=True).fit(counts).transform(counts, copy=False)
         else:
             matrix = block.fit_transform(texts)  # type: ignore[attr-defined]
@@ -327,7 +337,16 @@ def vectorise(
             vectors, _ = embed_with_cache(texts, None, settings.embedding_cache, on_progress=on_progress)
             return np.asarray(vectors, dtype=np.float32)
         return np.asarray(embed_texts(texts, on_progress=on_progress), dtype=np.float32)
-    blocks = [_fit_block(block, texts) for block in _blocks(settings)]
+    progress = on_progress or (lambda stage, done, total: None)
+    fitters = _blocks(settings)
+    n = len(texts)
+    blocks = []
+    for number, block in enumerate(fitters):
+        # One bar over all blocks: each block's documents count for 1/len(blocks) of the total.
+        def report(done: int, number: int = number) -> None:
+            progress("vectors", (number * n + done) // len(fitters), n)
+
+        blocks.append(_fit_block(block, texts, report))
     matrix = sp.hstack(blocks, format="csr", dtype=np.float32) if len(blocks) > 1 else blocks[0]
     if matrix.shape[1]:  # sklearn's normalize rejects a matrix with no columns (all texts empty)
         matrix = normalize(matrix, norm="l2", copy=False)
