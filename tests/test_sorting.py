@@ -132,3 +132,21 @@ def test_seed_confidence_is_the_probability_of_the_given_label() -> None:
     for row in np.flatnonzero(result.status == "seed"):
         assert result.confidence[row] == pytest.approx(result.probabilities[row, result.assigned[row]], abs=1e-6)
     assert result.estimated_accuracy is None  # cross-check turned off: nothing held out
+
+
+def test_progress_of_every_stage_is_monotone_and_ends_at_its_total() -> None:
+    """Progress (common practice for progress bars): each stage's count never goes back and
+    ends at its total; the cross-check counts its folds."""
+    docs, truth = topic_documents()
+    pairs = [(docs[i].id, truth[i]) for i in (0, 1, 2, 10, 11, 12, 20, 21, 22, 30, 31, 32)]
+    seen: dict[str, list[tuple[int, int | None]]] = {}
+    sort_documents(
+        docs, resolve_seeds(docs, pairs), SortSettings(cross_check_folds=3),
+        on_progress=lambda stage, done, total: seen.setdefault(stage, []).append((done, total)),
+    )
+    assert {"vectors", "graph", "spread", "cross-check"} <= set(seen)
+    assert seen["cross-check"] == [(0, 3), (1, 3), (2, 3), (3, 3)]
+    for stage, calls in seen.items():
+        done = [d for d, _ in calls]
+        assert done == sorted(done), stage
+        assert calls[-1][0] == calls[-1][1], stage

@@ -282,12 +282,10 @@ def sort_documents(
     if checked is not None:
         return _quick_result(documents, seeds, settings, views, prepared, checked, timings, collection)
     if settings.cross_check_folds >= 2:
-        progress("cross-check", 0, 1)
         held_views = cross_check(
             vectors, graph, seed_rows, seed_classes, c, settings.model, order_key, settings.cross_check_folds,
-            full_scores=views.spread_scores(),
+            full_scores=views.spread_scores(), on_progress=progress,
         )
-        progress("cross-check", 1, 1)
     else:
         nothing = np.full((len(seeds), c), np.nan)
         held_views = Views(nothing, np.full(len(seeds), np.nan), nothing, 0)
