@@ -126,8 +126,18 @@ def _banking77_texts(count: int) -> list[str]:
     return frame["text"].head(count).tolist()
 
 
+@pytest.fixture(params=[50_000, 333], ids=["one-chunk", "many-chunks"])
+def row_chunk(request: pytest.FixtureRequest, monkeypatch: pytest.MonkeyPatch) -> int:
+    """Rows weighted and joined at a time (vectors._ROW_CHUNK): one chunk, or many with a
+    ragged last one; the matrix must not depend on it."""
+    import seedsort.vectors
+
+    monkeypatch.setattr(seedsort.vectors, "_ROW_CHUNK", request.param)
+    return request.param
+
+
 @pytest.mark.parametrize("mode", ["tfidf", "hashed"])
-def test_char_block_equals_sklearn_exactly(mode: str) -> None:
+def test_char_block_equals_sklearn_exactly(mode: str, row_chunk: int) -> None:
     """Reference: sklearn TfidfVectorizer(analyzer="char_wb", ngram_range=(2, 5), sublinear_tf)
     in tfidf mode; HashingVectorizer(analyzer="char_wb", 2**20 columns, no sign, no norm) +
     TfidfTransformer(sublinear_tf) in hashed mode; both L2-normalised, on BANKING77 texts plus
@@ -157,7 +167,7 @@ def test_char_block_equals_sklearn_exactly(mode: str) -> None:
 
 
 @pytest.mark.parametrize("ngram_range", [(1, 2), (1, 1), (2, 2)])
-def test_word_block_equals_sklearn_exactly(ngram_range: tuple[int, int]) -> None:
+def test_word_block_equals_sklearn_exactly(ngram_range: tuple[int, int], row_chunk: int) -> None:
     """Reference: sklearn TfidfVectorizer(analyzer="word", token_pattern=r"(?u)\\b\\w+\\b",
     sublinear_tf=True), L2-normalised, on BANKING77 texts plus edge cases (words that are
     prefixes of others and underscores, which the sorted vocabulary must order as sklearn
@@ -188,3 +198,24 @@ def test_progress_reaches_every_document_once_per_bar() -> None:
     assert all(total == len(texts) for _, _, total in seen)
     done = [d for _, d, _ in seen]
     assert done == sorted(done) and done[-1] == len(texts) and len(done) >= 4
+
+
+def test_joined_blocks_equal_sklearn_stacked(row_chunk: int) -> None:
+    """Reference: the two sklearn TfidfVectorizer blocks (word 1-2, char_wb 2-5, sublinear tf),
+    each L2-normalised, joined with scipy.sparse.hstack and normalised again: the module
+    docstring's definition, computed on BANKING77 texts whole; ours is built a row chunk at
+    a time."""
+    from sklearn.preprocessing import normalize
+
+    texts = _banking77_texts(1500) + EDGE_TEXTS
+    word = TfidfVectorizer(
+        ngram_range=(1, 2), token_pattern=r"(?u)\b\w+\b", sublinear_tf=True, dtype=np.float32
+    ).fit_transform(texts)
+    char = TfidfVectorizer(analyzer="char_wb", ngram_range=(2, 5), sublinear_tf=True, dtype=np.float32).fit_transform(texts)
+    ref = normalize(sp.hstack([normalize(word), normalize(char)], format="csr"))
+    ref.sort_indices()
+    ours = vectorise(texts)
+    assert ours.shape == ref.shape and ours.dtype == np.float32
+    np.testing.assert_array_equal(ours.indptr, ref.indptr)
+    np.testing.assert_array_equal(ours.indices, ref.indices)
+    np.testing.assert_allclose(ours.data, ref.data, rtol=1e-6, atol=0)
