@@ -24,7 +24,7 @@ from __future__ import annotations
 
 import re
 from itertools import chain
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Iterator, Sequence
 from dataclasses import dataclass
 from functools import lru_cache
 
@@ -43,7 +43,7 @@ from .errors import InputError
 
 _WORD = re.compile(r"(?u)\b\w+\b")
 #: Rows per chunk when weighting and joining the blocks: bounds the transient copies.
-_ROW_CHUNK = 50_000
+_ROW_CHUNK = 20_000
 VECTOR_MODES = ("tfidf", "hashed", "embed")
 
 
@@ -223,7 +223,7 @@ def _split_rows(matrix: sp.csr_matrix) -> list[sp.csr_matrix]:
     return [sp.csr_matrix(matrix[start:stop]) for start, stop in _row_chunks(matrix.shape[0])]
 
 
-def _char_block_counts(block: object, texts: Sequence[str], report: Callable[[int], None]) -> list[sp.csr_matrix]:
+def _char_block_counts(block: object, texts: Sequence[str], report: Callable[[int], None]) -> _ProductChunks:
     """Character n-gram counts (``char_wb``) of every text, each distinct word cut only once.
 
     ``char_wb`` n-grams never cross a word boundary, so a text's counts are the sum of its
@@ -240,20 +240,43 @@ def _char_block_counts(block: object, texts: Sequence[str], report: Callable[[in
         per_word = block.transform(words)
     else:
         per_word = block.fit_transform(words)  # type: ignore[attr-defined]
-    per_word = sp.csr_matrix(per_word, dtype=np.float32)
-    chunks = []
-    for start, stop in _row_chunks(len(texts)):
-        counts = (per_document[start:stop] @ per_word).tocsr()  # float32 counts: exact below 2^24
+    return _ProductChunks(per_document, sp.csr_matrix(per_word, dtype=np.float32))
+
+
+class _ProductChunks:
+    """Row chunks of (documents x words) @ (words x n-grams), each computed when asked.
+
+    The character block is most of the vectors' size (~85% of the entries on tickets), so
+    its counts are never all held: the idf pass and the joining pass each compute a chunk,
+    use it and drop it (the product costs about a second per 300,000 tickets, measured).
+    """
+
+    def __init__(self, per_document: sp.csr_matrix, per_word: sp.csr_matrix) -> None:
+        self.per_document, self.per_word = per_document, per_word
+        self.spans = _row_chunks(per_document.shape[0])
+
+    def __len__(self) -> int:
+        return len(self.spans)
+
+    def __iter__(self) -> Iterator[sp.csr_matrix]:
+        return (self[i] for i in range(len(self)))
+
+    def __getitem__(self, number: int) -> sp.csr_matrix:
+        start, stop = self.spans[number]
+        counts = (self.per_document[start:stop] @ self.per_word).tocsr()  # float32 counts: exact below 2^24
         counts.sort_indices()
-        chunks.append(counts)
-    return chunks
+        return counts
+
+    def __setitem__(self, number: int, value: None) -> None:
+        """Nothing is held, so there is nothing to drop."""
 
 
 def _word_ngram_counts(
     texts: Sequence[str], ngram_range: tuple[int, int], report: Callable[[int], None]
-) -> sp.csr_matrix:
+) -> list[sp.csr_matrix]:
     """Word 1-2-gram counts equal to scikit-learn's CountVectorizer(analyzer="word",
-    token_pattern=r"(?u)\\b\\w+\\b", lowercase=True), vocabulary in its sorted order.
+    token_pattern=r"(?u)\\b\\w+\\b", lowercase=True), vocabulary in its sorted order, as
+    row chunks.
 
     Tokens become integer ids once; a bigram is a pair of consecutive ids, counted with
     numpy instead of one dictionary look-up per joined string (~4x faster at 30,000
@@ -261,33 +284,44 @@ def _word_ngram_counts(
     sort beyond the distinct words: tokens hold only word characters, all above the space
     (U+0020) that joins a bigram, so "a b" sorts exactly as the pair (a, b) and the unigram
     "a" as (a, nothing) (common practice for composite keys; tested against scikit-learn).
+    Keys are made a row chunk at a time (twice: once for the vocabulary, once for the
+    counts), so the transient arrays are a chunk's, not the collection's.
     """
     low, high = ngram_range
     token_ids, indptr, words = _token_ids(texts, _lower_words, report)
-    n_docs, n_words = len(texts), len(words)
-    doc_of = np.repeat(np.arange(n_docs, dtype=np.int64), np.diff(indptr))
+    n_words = len(words)
     rank = np.empty(n_words, dtype=np.int64)
     rank[sorted(range(n_words), key=words.__getitem__)] = np.arange(n_words)
-    # Each n-gram as a key (rank of first word, rank of second word + 1, or 0 for a unigram).
-    firsts, seconds, docs = [], [], []
-    if low <= 1:
-        firsts.append(rank[token_ids])
-        seconds.append(np.zeros(token_ids.size, np.int64))
-        docs.append(doc_of)
-    if high >= 2:
-        same_doc = doc_of[1:] == doc_of[:-1]
-        firsts.append(rank[token_ids[:-1][same_doc]])
-        seconds.append(rank[token_ids[1:][same_doc]] + 1)
-        docs.append(doc_of[1:][same_doc])
-    del token_ids, doc_of
-    key = np.concatenate(firsts) * (n_words + 1) + np.concatenate(seconds)
-    vocabulary, column = np.unique(key, return_inverse=True)
-    counts = sp.csr_matrix(
-        (np.ones(key.size, dtype=np.float32), (np.concatenate(docs), column.ravel())),
-        shape=(n_docs, vocabulary.size),
-    )
-    counts.sum_duplicates()
-    return counts
+    ranked = rank[token_ids]
+    del token_ids, rank
+
+    def keys_of(start: int, stop: int) -> tuple[np.ndarray, np.ndarray]:
+        """(n-gram keys, their row within the chunk): key = rank(first) * (words + 1) +
+        rank(second) + 1, or + 0 for a unigram."""
+        tokens = ranked[indptr[start] : indptr[stop]]
+        row = np.repeat(np.arange(stop - start, dtype=np.int64), np.diff(indptr[start : stop + 1]))
+        keys, rows = [], []
+        if low <= 1:
+            keys.append(tokens * (n_words + 1))
+            rows.append(row)
+        if high >= 2:
+            same_doc = row[1:] == row[:-1]
+            keys.append(tokens[:-1][same_doc] * (n_words + 1) + tokens[1:][same_doc] + 1)
+            rows.append(row[1:][same_doc])
+        return np.concatenate(keys), np.concatenate(rows)
+
+    spans = _row_chunks(len(texts))
+    vocabulary = np.unique(np.concatenate([np.unique(keys_of(a, b)[0]) for a, b in spans]))
+    chunks = []
+    for start, stop in spans:
+        keys, rows = keys_of(start, stop)
+        counts = sp.csr_matrix(
+            (np.ones(keys.size, dtype=np.float32), (rows, np.searchsorted(vocabulary, keys))),
+            shape=(stop - start, vocabulary.size),
+        )
+        counts.sum_duplicates()
+        chunks.append(counts)
+    return chunks
 
 
 def _block_counts(block: object, texts: Sequence[str], report: Callable[[int], None]) -> list[sp.csr_matrix]:
@@ -312,7 +346,7 @@ def _block_counts(block: object, texts: Sequence[str], report: Callable[[int], N
     if block.analyzer == "word" and block.token_pattern == _WORD.pattern and tuple(block.ngram_range) in {  # type: ignore[attr-defined]
         (1, 1), (1, 2), (2, 2)
     }:
-        return _split_rows(_word_ngram_counts(texts, tuple(block.ngram_range), report))  # type: ignore[attr-defined]
+        return _word_ngram_counts(texts, tuple(block.ngram_range), report)  # type: ignore[attr-defined]
     # The same n-grams counted (TfidfVectorizer is CountVectorizer + TfidfTransformer).
     shared = CountVectorizer().get_params()
     counting = CountVectorizer(
@@ -326,20 +360,29 @@ def _block_counts(block: object, texts: Sequence[str], report: Callable[[int], N
     return _split_rows(sp.csr_matrix(whole, dtype=np.float32))
 
 
-def _idf(chunks: list[sp.csr_matrix], n_docs: int) -> np.ndarray:
-    """Smoothed idf, log((1 + n) / (1 + df)) + 1, in float32 with scikit-learn's own steps
-    (TfidfTransformer.fit on float32 counts), so the weights are identical to its."""
-    columns = chunks[0].shape[1]
-    df = np.zeros(columns, dtype=np.int64)
+def _idf(chunks: Sequence[sp.csr_matrix], n_docs: int) -> tuple[np.ndarray | None, int, int]:
+    """(idf, columns, stored entries) of one block's count chunks, in one pass over them.
+
+    Smoothed idf, log((1 + n) / (1 + df)) + 1, in float32 with scikit-learn's own steps
+    (TfidfTransformer.fit on float32 counts), so the weights are identical to its; None when
+    the block has no columns.
+    """
+    df: np.ndarray | None = None
+    nnz = 0
     for chunk in chunks:
-        df += np.bincount(chunk.indices, minlength=columns)
+        if df is None:
+            df = np.zeros(chunk.shape[1], dtype=np.int64)
+        df += np.bincount(chunk.indices, minlength=df.size)
+        nnz += chunk.nnz
+    if df is None or not df.size:
+        return None, 0, nnz
     df_float = df.astype(np.float32)
     df_float += 1.0
     idf = np.full_like(df_float, fill_value=n_docs + 1, dtype=np.float32)
     idf /= df_float
     np.log(idf, out=idf)
     idf += 1.0
-    return idf
+    return idf, df.size, nnz
 
 
 def _weigh_in_place(chunk: sp.csr_matrix, idf: np.ndarray) -> sp.csr_matrix:
@@ -356,21 +399,23 @@ def _ngram_vectors(texts: Sequence[str], settings: VectorSettings, progress: Pro
     """Counts of every block, then weighting and joining a row chunk at a time into one CSR.
 
     The joined matrix is written into arrays allocated once at its final size, and each
-    chunk's counts are dropped as soon as they are copied, so the peak is about one copy of
-    the result plus one chunk (not the 3-4 copies of weighting and stacking whole blocks).
+    chunk's counts are dropped as soon as they are copied (the character block's are not
+    even held: :class:`_ProductChunks`), so the peak is about one copy of the result plus the
+    word block's counts (not the 3 copies of weighting and stacking whole blocks).
     """
     fitters = _blocks(settings)
     n = len(texts)
     per_block = []
+    columns = nnz = 0
     for number, block in enumerate(fitters):
         # One bar over all blocks: each block's documents count for 1/len(blocks) of the total.
         def report(done: int, number: int = number) -> None:
             progress("vectors", (number * n + done) // len(fitters), n)
 
         chunks = _block_counts(block, texts, report)
-        per_block.append((chunks, _idf(chunks, n) if chunks[0].shape[1] else None))
-    widths = [chunks[0].shape[1] for chunks, _ in per_block]
-    columns, nnz = sum(widths), sum(chunk.nnz for chunks, _ in per_block for chunk in chunks)
+        idf, width, stored = _idf(chunks, n)
+        per_block.append((chunks, idf))
+        columns, nnz = columns + width, nnz + stored
     index_type = np.int32 if max(columns, nnz) < np.iinfo(np.int32).max else np.int64
     data = np.empty(nnz, dtype=np.float32)
     indices = np.empty(nnz, dtype=index_type)
