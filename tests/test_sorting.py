@@ -150,3 +150,27 @@ def test_progress_of_every_stage_is_monotone_and_ends_at_its_total() -> None:
         done = [d for d, _ in calls]
         assert done == sorted(done), stage
         assert calls[-1][0] == calls[-1][1], stage
+
+
+@settings(max_examples=60, deadline=None)
+@given(
+    st.integers(1, 6).flatmap(
+        lambda c: st.lists(
+            st.lists(st.sampled_from([0.0, 0.1, 0.25, 0.5, 1.0]), min_size=c, max_size=c), min_size=1, max_size=30
+        )
+    ),
+    st.integers(1, 7),
+)
+def test_top_two_equals_a_stable_sort(rows: list[list[float]], rows_at_a_time: int) -> None:
+    """Reference: numpy's stable argsort of -p (ties to the smaller column), first two columns;
+    values drawn from a small set so that ties are common."""
+    from seedsort.sorting import _top_two
+
+    probs = np.array(rows, dtype=np.float64)
+    best, second = _top_two(probs, rows_at_a_time)
+    order = np.argsort(-probs, axis=1, kind="stable")
+    np.testing.assert_array_equal(best, order[:, 0])
+    if probs.shape[1] >= 2:
+        np.testing.assert_array_equal(second, order[:, 1])
+    else:
+        assert not second.any()

@@ -326,6 +326,25 @@ def sort_documents(
     )
 
 
+def _top_two(probs: np.ndarray, rows_at_a_time: int = 50_000) -> tuple[np.ndarray, np.ndarray]:
+    """Each row's most and second most probable column; ties go to the smaller column.
+
+    The same as the first two columns of a stable argsort of -probs, without sorting every
+    row or holding an (n, c) index array: at 1,000,000 documents x 77 categories that sort
+    took 0.6 GB. 0 and 0 when there is a single column.
+    """
+    n, c = probs.shape
+    best = np.argmax(probs, axis=1) if c else np.zeros(n, dtype=np.int64)
+    second = np.zeros(n, dtype=np.int64)
+    if c < 2:
+        return best, second
+    for start in range(0, n, rows_at_a_time):
+        block = probs[start : start + rows_at_a_time].copy()
+        block[np.arange(block.shape[0]), best[start : start + rows_at_a_time]] = -np.inf
+        second[start : start + rows_at_a_time] = np.argmax(block, axis=1)
+    return best, second
+
+
 def _finish(
     documents: Sequence[Document],
     seeds: SeedSet,
@@ -359,8 +378,7 @@ def _finish(
 
     blended = views.blend(weight)
     probs = apply_temperature(blended, temperature)
-    top2 = np.argsort(-probs, axis=1, kind="stable")[:, :2] if c >= 2 else np.zeros((n, 2), dtype=np.int64)
-    best, second = top2[:, 0], top2[:, 1]
+    best, second = _top_two(probs)
     rows = np.arange(n)
     confidence = probs[rows, best]
     margin = confidence - probs[rows, second]
