@@ -207,3 +207,23 @@ def test_a_close_initial_guess_reaches_the_same_fixed_point_in_fewer_products(so
     np.testing.assert_allclose(warm.scores, expected, atol=1e-9)
     exact = spread_labels(s, y, alpha=alpha, tol=1e-12, solver=solver, initial=expected)
     assert exact.iterations == 1  # already at the fixed point: one check, no step
+
+
+@pytest.mark.parametrize("rows_at_a_time", [1, 7, 1000])
+def test_blockwise_float64_check_is_the_residual_of_the_linear_system(rows_at_a_time: int) -> None:
+    """Reference: the residual of Zhou et al.'s (2004) linear system (I - alpha S) F = (1 - alpha) Y,
+    computed densely in float64 by numpy; the block-wise check on a float32 S must agree on
+    which side of the tolerance each candidate F lies (the exact solution, and one nudged)."""
+    from seedsort.spreading import _residual_below
+
+    w = _random_symmetric(40, seed=3)
+    s32 = normalised_affinity(sp.csr_matrix(w, dtype=np.float32))
+    y = seed_matrix(np.array([0, 1, 2, 3]), np.array([0, 1, 2, 0]), 40, 3)
+    alpha = 0.9
+    dense = s32.toarray().astype(np.float64)
+    exact = (1 - alpha) * np.linalg.solve(np.eye(40) - alpha * dense, y)
+    for candidate in (exact, exact + 1e-3):
+        residual = (1 - alpha) * y - (candidate - alpha * dense @ candidate)
+        norm = float(np.sqrt((residual**2).sum(axis=0)).max())
+        for tol in (norm * 0.5, norm * 2.0):
+            assert _residual_below(s32, y, candidate, alpha, tol, rows_at_a_time) == (norm < tol)

@@ -183,6 +183,25 @@ FLOAT32_MIN_DOCUMENTS = 20_000
 FLOAT32_SOLVERS = frozenset({"cg"})
 
 
+def _residual_below(
+    s: sp.csr_matrix, y: np.ndarray, x: np.ndarray, alpha: float, tol: float, rows_at_a_time: int = 50_000
+) -> bool:
+    """Whether every column of the float64 residual (1 - alpha) Y - (X - alpha S X) has norm
+    below ``tol``: the CG solver's own first check, computed a block of rows at a time.
+
+    Each block of S is widened to float64 on its own (exactly, float32 values are float64
+    values), so the check never holds a float64 copy of S or an (n, c) residual: at
+    1,000,000 documents x 77 categories those would take ~2 GB.
+    """
+    squares = np.zeros(y.shape[1], dtype=np.float64)
+    for start in range(0, s.shape[0], rows_at_a_time):
+        stop = start + rows_at_a_time
+        block = sp.csr_matrix(s[start:stop], dtype=np.float64)
+        r = (1.0 - alpha) * y[start:stop] - (x[start:stop] - alpha * (block @ x))
+        squares += _column_dots(r, r)
+    return bool(np.sqrt(squares.max()) < tol) if squares.size else True
+
+
 def spread_labels(
     s: sp.csr_matrix,
     y: np.ndarray,
@@ -247,7 +266,13 @@ def spread_labels(
         products, left = rough.iterations, max(1, max_iter - rough.iterations)
         guess = rough.scores.astype(np.float64)
         del rough  # at 1M documents x 77 categories its float32 scores hold 300 MB
-    result = run(s_ordered.astype(np.float64), y_ordered, alpha, tol, left, guess)
+        if _residual_below(s_ordered, y_ordered, guess, alpha, tol):
+            # The float64 check passed: the run below would stop at once with this guess.
+            result = SpreadResult(guess, 1, True)
+        else:
+            result = run(s_ordered.astype(np.float64), y_ordered, alpha, tol, left, guess)
+    else:
+        result = run(s_ordered.astype(np.float64), y_ordered, alpha, tol, left, guess)
     if not result.converged:
         warnings.warn(
             f"Label spreading stopped at its cap of {max_iter} iterations before reaching "
