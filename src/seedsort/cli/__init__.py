@@ -18,7 +18,6 @@ from typing import TYPE_CHECKING
 
 from ..errors import SeedsortError, SeedsortWarning
 from ..review import REVIEW_ORDERS
-from ..workspace import default_workspace_path
 
 if TYPE_CHECKING:
     from ..sorting import SortSettings
@@ -249,6 +248,8 @@ def _default_embedding_cache(args: argparse.Namespace) -> str:
     """Beside the workspace (one per collection), or beside the results without one."""
     if args.no_workspace:
         return str(Path(args.out).with_suffix(".embeddings.npz"))
+    from ..workspace import default_workspace_path
+
     workspace = Path(args.workspace or default_workspace_path(args.path))
     return str(workspace.with_name(workspace.name + ".embeddings.npz"))
 
@@ -278,6 +279,8 @@ def _run_sort(args: argparse.Namespace, reporter: Reporter) -> int:
     from ..sorting import sort_folder
     from ..sources import TableColumns
     from ..workflow import sort_into_workspace
+
+    from ..workspace import default_workspace_path
 
     workspace = None if args.no_workspace else Path(args.workspace or default_workspace_path(args.path))
     if not (args.seeds or args.examples or args.label_column) and (workspace is None or not workspace.exists()):
@@ -390,15 +393,26 @@ class _UsageError(Exception):
 
 def main(argv: Sequence[str] | None = None) -> int:
     """Entry point of the ``seedsort`` command; returns the exit code."""
+    from . import _interrupt
+
+    try:
+        with _interrupt.recorded():
+            return _main(argv)
+    except KeyboardInterrupt:  # pressed before the command began (parsing, imports)
+        print("seedsort: interrupted.", file=sys.stderr)
+        return EXIT_INTERRUPTED
+
+
+def _main(argv: Sequence[str] | None) -> int:
     parser = build_parser()
     args = parser.parse_args(argv)
     if args.command is None:
         parser.print_help(sys.stderr)
         return EXIT_USAGE
-    from ._report import Reporter
-
-    reporter = Reporter(quiet=getattr(args, "quiet", False))
     try:
+        from ._report import Reporter
+
+        reporter = Reporter(quiet=getattr(args, "quiet", False))
         return _RUNNERS[args.command](args, reporter)
     except _UsageError as exc:
         print(f"seedsort: usage error: {exc} (see 'seedsort {args.command} --help')", file=sys.stderr)

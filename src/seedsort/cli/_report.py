@@ -27,6 +27,7 @@ from rich.table import Table
 from rich.text import Text
 
 from .._progress import ProgressCallback
+from ._interrupt import check as check_interrupt
 from typing import TYPE_CHECKING
 
 from ..review import ReviewItem
@@ -73,8 +74,9 @@ class Reporter:
     @contextmanager
     def progress(self) -> Iterator[ProgressCallback]:
         """A progress callback drawing one bar per stage (silent off a terminal or with --quiet)."""
+        # Every report also checks for a Ctrl-C that a callback swallowed (see _interrupt).
         if self.quiet or not self.err.is_terminal:
-            yield lambda stage, done, total: None
+            yield lambda stage, done, total: check_interrupt()
             return
         bars = Progress(
             TextColumn("{task.description:<18}"), BarColumn(), MofNCompleteColumn(),
@@ -84,6 +86,7 @@ class Reporter:
         tasks: dict[str, int] = {}
 
         def update(stage: str, done: int, total: int | None) -> None:
+            check_interrupt()
             if stage not in tasks:
                 tasks[stage] = bars.add_task(STAGE_NAMES.get(stage, stage), total=total)
             bars.update(tasks[stage], completed=done, total=total)
