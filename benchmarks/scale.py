@@ -8,7 +8,7 @@ Parts
   --sizes N ...       a generated ticket corpus of N documents (benchmarks/_tickets.py:
                       BANKING77 utterances resampled and perturbed, 10 seeds per category in
                       a label column) is written to a CSV file, then the whole pipeline runs:
-                      read (seedsort.sources) -> vectors -> graph (auto: exact up to 20,000
+                      read (seedsort.sources) -> vectors -> graph (auto: exact up to 15,000
                       documents, approximate above) -> spreading + classifier + cross-check
                       + nearest seeds -> export (CSV). Printed per stage: wall seconds and
                       peak resident memory (RSS) during the stage. At sizes up to
