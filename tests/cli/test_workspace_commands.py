@@ -69,6 +69,13 @@ def test_cli_vector_modes_match_the_library() -> None:
     assert VECTOR_MODES == LIBRARY_VECTOR_MODES
 
 
+def test_cli_help_names_the_library_switch_to_the_approximate_graph() -> None:
+    from seedsort.cli import APPROXIMATE_ABOVE
+    from seedsort.graph_approx import AUTO_APPROXIMATE_ABOVE
+
+    assert APPROXIMATE_ABOVE == AUTO_APPROXIMATE_ABOVE
+
+
 def test_report_statuses_match_the_library() -> None:
     """The report keeps its own copy so that printing it never loads pandas."""
     from seedsort.cli._report import STATUSES as REPORT_STATUSES

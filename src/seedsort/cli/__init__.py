@@ -26,6 +26,8 @@ if TYPE_CHECKING:
 # The library (scikit-learn, pandas) is imported inside each command, so '--help' and usage
 # errors answer at once. Kept equal to seedsort.vectors.VECTOR_MODES by a test.
 VECTOR_MODES = ("tfidf", "hashed", "embed")
+#: seedsort.graph_approx.AUTO_APPROXIMATE_ABOVE, for the help text (a test keeps them equal).
+APPROXIMATE_ABOVE = 15_000
 
 EXIT_OK, EXIT_DATA, EXIT_USAGE, EXIT_INTERRUPTED = 0, 1, 2, 130
 
@@ -153,7 +155,7 @@ def build_parser() -> argparse.ArgumentParser:
                         help="neighbours per document in the graph (default: %(default)s)")
     method.add_argument("--graph", choices=("auto", "exact", "approximate"), default="auto",
                         help="neighbour search: exact, approximate (faster on large collections), "
-                        "or auto: approximate above 20,000 documents (default: %(default)s)")
+                        f"or auto: approximate above {APPROXIMATE_ABOVE:,} documents (default: %(default)s)")
     method.add_argument("--alpha", type=_alpha, default=0.99,
                         help="how far labels spread, 0 to <1 (default: %(default)s)")
     method.add_argument("--graph-weight", metavar="W", type=_fraction, default=None,
