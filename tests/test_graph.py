@@ -240,3 +240,14 @@ def test_nearest_rows_ties_go_to_the_target_listed_first() -> None:
     assert rows.tolist() == [[3, 1], [3, 2], [3, 1], [1, 2], [-1, -1]]
     np.testing.assert_allclose(sims[:4], 1.0)
     assert np.all(sims[4] == 0)
+
+
+def test_nearest_rows_reports_progress_up_to_every_row(vectors: sp.csr_matrix) -> None:
+    """Progress (common practice for progress bars): monotone, ends at the number of rows."""
+    n = vectors.shape[0]
+    seen: list[tuple[str, int, int | None]] = []
+    nearest_rows(vectors, np.arange(0, n, 3), 3, block_bytes=2_000,
+                 on_progress=lambda stage, done, total: seen.append((stage, done, total)))
+    assert {stage for stage, _, _ in seen} == {"nearest seeds"} and len(seen) > 1
+    done = [d for _, d, _ in seen]
+    assert done == sorted(done) and done[-1] == n and all(t == n for *_, t in seen)

@@ -345,13 +345,14 @@ def nearest_rows(
     m: int,
     *,
     block_bytes: int = BLOCK_BYTES,
+    on_progress: ProgressCallback | None = None,
 ) -> tuple[np.ndarray, np.ndarray]:
     """For every row, the ``m`` most cosine-similar rows among ``targets`` (itself excluded).
 
     Used to show the seed documents that justify a category. Scored and chosen as in
     :func:`knn_cosine`, with the targets as the columns; ties go to the target listed
     first. Cost O(n * len(targets) * h) for ``h`` dense features plus the sparse product
-    of the rest.
+    of the rest. Progress: ``on_progress("nearest seeds", rows_done, n)``.
 
     Returns
     -------
@@ -372,7 +373,9 @@ def nearest_rows(
     def best(start: int, stop: int) -> tuple[np.ndarray, np.ndarray]:
         return scorer.best(start, stop, m_eff, column_of[start:stop], targets)
 
+    progress = on_progress or no_progress
     for start, stop, (idx, val) in _blocks(n, scorer.rows_per_block, best):
         rows[start:stop, :m_eff] = idx
         sims[start:stop, :m_eff] = val
+        progress("nearest seeds", stop, n)
     return rows, sims
