@@ -227,3 +227,19 @@ def test_blockwise_float64_check_is_the_residual_of_the_linear_system(rows_at_a_
         norm = float(np.sqrt((residual**2).sum(axis=0)).max())
         for tol in (norm * 0.5, norm * 2.0):
             assert _residual_below(s32, y, candidate, alpha, tol, rows_at_a_time) == (norm < tol)
+
+
+@pytest.mark.parametrize("solver", SOLVERS)
+def test_progress_counts_every_product_and_ends_at_the_total(solver: str) -> None:
+    """Progress (common practice for progress bars): one report per sparse product, counts
+    rising, each estimated total at least the count so far, the last report (done, done)
+    with done the products the result states."""
+    w = _random_symmetric(60, seed=5)
+    y = seed_matrix(np.array([0, 1, 2]), np.array([0, 1, 2]), 60, 3)
+    seen: list[tuple[str, int, int | None]] = []
+    result = spread_labels(normalised_affinity(w), y, alpha=0.9, tol=1e-9, max_iter=5000, solver=solver,
+                           on_progress=lambda stage, done, total: seen.append((stage, done, total)))
+    assert {stage for stage, _, _ in seen} == {"spread"}
+    done = [d for _, d, _ in seen]
+    assert done == sorted(done) and all(total is not None and total >= d for _, d, total in seen)
+    assert seen[-1] == ("spread", result.iterations, result.iterations)

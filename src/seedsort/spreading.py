@@ -39,6 +39,7 @@ import numpy as np
 import scipy.sparse as sp
 from scipy.sparse.csgraph import reverse_cuthill_mckee
 
+from ._progress import ProgressCallback, no_progress
 from .errors import SpreadingNotConvergedWarning
 
 
@@ -103,7 +104,13 @@ def seed_matrix(
 
 
 def _iterate(
-    s: sp.csr_matrix, y: np.ndarray, alpha: float, tol: float, max_iter: int, initial: np.ndarray | None = None
+    s: sp.csr_matrix,
+    y: np.ndarray,
+    alpha: float,
+    tol: float,
+    max_iter: int,
+    initial: np.ndarray | None = None,
+    report: Callable[[int, float], None] | None = None,
 ) -> SpreadResult:
     base = (1.0 - alpha) * y
     f = y.copy() if initial is None else np.array(initial, dtype=y.dtype)
@@ -111,13 +118,21 @@ def _iterate(
         nxt = alpha * (s @ f) + base
         change = float(np.max(np.abs(nxt - f))) if f.size else 0.0
         f = nxt
+        if report is not None:
+            report(iteration, change)
         if change < tol:
             return SpreadResult(f, iteration, True)
     return SpreadResult(f, max_iter, False)
 
 
 def _conjugate_gradient(
-    s: sp.csr_matrix, y: np.ndarray, alpha: float, tol: float, max_iter: int, initial: np.ndarray | None = None
+    s: sp.csr_matrix,
+    y: np.ndarray,
+    alpha: float,
+    tol: float,
+    max_iter: int,
+    initial: np.ndarray | None = None,
+    report: Callable[[int, float], None] | None = None,
 ) -> SpreadResult:
     """Conjugate gradient on every category's column at once (independent CG runs, vectorised).
 
@@ -147,6 +162,8 @@ def _conjugate_gradient(
         x += np.multiply(p, length, out=scratch)
         r -= np.multiply(ap, length, out=scratch)
         rs_next = _column_dots(r, r)
+        if report is not None:
+            report(step + 1, float(np.sqrt(rs_next.max())))
         if np.sqrt(rs_next.max()) < tol:
             return SpreadResult(x, step + 1, True)
         with np.errstate(divide="ignore", invalid="ignore"):
@@ -162,8 +179,9 @@ def _column_dots(a: np.ndarray, b: np.ndarray) -> np.ndarray:
 
 
 #: Solver name -> function; all reach the same fixed point. Each takes (S, Y, alpha, tol,
-#: max_iter, initial guess or None) and works in the dtype of Y.
-SOLVERS: dict[str, Callable[[sp.csr_matrix, np.ndarray, float, float, int, np.ndarray | None], SpreadResult]] = {
+#: max_iter, initial guess or None, optional report(products, residual)) and works in the
+#: dtype of Y.
+SOLVERS: dict[str, Callable[..., SpreadResult]] = {
     "iterate": _iterate,
     "cg": _conjugate_gradient,
 }
@@ -181,6 +199,20 @@ FLOAT32_MIN_DOCUMENTS = 20_000
 #: below float32's spacing of the largest score (~6e-8 of it), so with heavy seed weights it
 #: could run to its cap before stopping.
 FLOAT32_SOLVERS = frozenset({"cg"})
+
+
+def _estimated_products(done: int, first: float, now: float, tol: float, cap: int) -> int:
+    """Products a solve will need in all, from the residual's fall so far (at least done + 1).
+
+    Extrapolates the geometric rate log(first / now) / done to the tolerance; with no fall
+    yet, the cap. An estimate for a progress bar, nothing depends on it.
+    """
+    if now <= tol:
+        return done
+    if not 0 < now < first or done < 1:
+        return max(done + 1, cap)
+    rate = np.log(first / now) / done
+    return int(min(cap, done + max(1, np.ceil(np.log(now / tol) / rate))))
 
 
 def _residual_below(
@@ -211,6 +243,7 @@ def spread_labels(
     max_iter: int = 1000,
     solver: str = "cg",
     initial: np.ndarray | None = None,
+    on_progress: ProgressCallback | None = None,
 ) -> SpreadResult:
     """Spread seed labels Y over the normalised graph S.
 
@@ -240,6 +273,10 @@ def spread_labels(
     initial:
         (n, c) a guess of the solution to start from (e.g. a related run's scores); the
         fixed point is the same, fewer products are needed the closer the guess.
+    on_progress:
+        Called as ``("spread", products, estimated_total)`` after each product; the total
+        is extrapolated from how fast the residual has fallen so far (both solvers shrink
+        it about geometrically), so a progress bar can show an ETA.
 
     Returns
     -------
@@ -258,11 +295,20 @@ def spread_labels(
     y_ordered = y[order]
     guess = None if initial is None else np.asarray(initial, dtype=np.float64)[order]
     products, left = 0, max_iter
+    progress = on_progress or no_progress
+    first: list[float] = []
+
+    def report(step: int, residual: float) -> None:
+        done = products + step
+        if not first:
+            first.append(residual)
+        progress("spread", done, _estimated_products(done, first[0], residual, tol, max_iter))
+
     if (
         s_ordered.dtype == np.float32 and tol >= FLOAT32_TOLERANCE and solver in FLOAT32_SOLVERS
         and s_ordered.shape[0] >= FLOAT32_MIN_DOCUMENTS
     ):
-        rough = run(s_ordered, y_ordered.astype(np.float32), alpha, tol, max_iter, guess)
+        rough = run(s_ordered, y_ordered.astype(np.float32), alpha, tol, max_iter, guess, report)
         products, left = rough.iterations, max(1, max_iter - rough.iterations)
         guess = rough.scores.astype(np.float64)
         del rough  # at 1M documents x 77 categories its float32 scores hold 300 MB
@@ -270,9 +316,9 @@ def spread_labels(
             # The float64 check passed: the run below would stop at once with this guess.
             result = SpreadResult(guess, 1, True)
         else:
-            result = run(s_ordered.astype(np.float64), y_ordered, alpha, tol, left, guess)
+            result = run(s_ordered.astype(np.float64), y_ordered, alpha, tol, left, guess, report)
     else:
-        result = run(s_ordered.astype(np.float64), y_ordered, alpha, tol, left, guess)
+        result = run(s_ordered.astype(np.float64), y_ordered, alpha, tol, left, guess, report)
     if not result.converged:
         warnings.warn(
             f"Label spreading stopped at its cap of {max_iter} iterations before reaching "
@@ -280,6 +326,7 @@ def spread_labels(
             SpreadingNotConvergedWarning,
             stacklevel=2,
         )
+    progress("spread", products + result.iterations, products + result.iterations)
     scores = np.empty_like(result.scores)
     scores[order] = result.scores
     return SpreadResult(scores, products + result.iterations, result.converged)
