@@ -16,10 +16,12 @@ Methods, for each kind of vectors (embeddings; n-gram TF-IDF, seedsort's default
   logistic regression   scikit-learn LogisticRegression(C=10) on the seeds' vectors
   blend w=0.5, plain    seedsort.combine.predict with graph_weight 0.5 and the classifier on
                         the plain vectors (feature_smoothing=0): label spreading over the
-                        10-NN cosine graph blended with the seed classifier
+                        run's 10-NN cosine graph blended with the seed classifier
   seedsort (default)    the whole default pipeline, sort_documents: graph weight chosen per
-                        run from the held-out seeds, and on embeddings the classifier fitted
-                        on graph-smoothed features (seedsort.combine.smooth_features)
+                        run from the held-out seeds; on embeddings the classifier fitted on
+                        graph-smoothed features (seedsort.combine.smooth_features) at C 30
+                        (ModelSettings.dense_classifier_strength) and the spread run over the
+                        graph's weights raised to the power 8 (seedsort.dense)
 Printed after the table: the graph weights the default pipeline chose.
 """
 

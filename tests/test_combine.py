@@ -209,23 +209,28 @@ def test_zero_smoothing_steps_leave_the_vectors_alone() -> None:
 
 
 def test_classifier_sees_smoothed_dense_vectors_and_plain_sparse_ones(model_inputs) -> None:
-    """Reference: sklearn LogisticRegression(C=10) fitted on the features the settings name: on
-    dense vectors the graph-smoothed ones (computed densely as in the test above), on sparse
-    n-gram vectors the vectors themselves, unless a number of steps is set."""
+    """Reference: sklearn LogisticRegression fitted on the features the settings name: on
+    dense vectors the graph-smoothed ones (computed densely as in the test above) at
+    C = dense_classifier_strength (30), on sparse n-gram vectors the vectors themselves at
+    C = classifier_strength (10), unless a number of steps or a strength is set."""
     vectors, graph = model_inputs
     dense = vectors.toarray()
     s_dense = graph.toarray().astype(np.float64)
     steps = DENSE_FEATURE_SMOOTHING
     smoothed = _unit_rows(dense + _unit_rows(np.linalg.matrix_power(s_dense, steps) @ dense))
-    for given, features, settings in [
-        (dense, smoothed, ModelSettings()),
-        (vectors, dense, ModelSettings()),
-        (vectors, smoothed, ModelSettings(feature_smoothing=steps)),
-        (dense, dense, ModelSettings(feature_smoothing=0)),
+    for given, features, settings, strength in [
+        (dense, smoothed, ModelSettings(), 30.0),
+        (vectors, dense, ModelSettings(), 10.0),
+        (vectors, smoothed, ModelSettings(feature_smoothing=steps), 10.0),
+        (dense, dense, ModelSettings(feature_smoothing=0), 30.0),
+        (dense, dense, ModelSettings(feature_smoothing=0, dense_classifier_strength=3.0), 3.0),
     ]:
         views = compute_views(given, graph, SEED_ROWS, SEED_CLASSES, 4, settings)
-        ref = LogisticRegression(C=10.0, max_iter=2000, tol=1e-10).fit(features[SEED_ROWS], SEED_CLASSES)
-        np.testing.assert_allclose(views.classifier, ref.predict_proba(features), atol=2e-3)
+        ref = LogisticRegression(C=strength, max_iter=2000, tol=1e-10).fit(features[SEED_ROWS], SEED_CLASSES)
+        # The module's newton-cg stops at sklearn's default tol (1e-4); the weaker penalty of
+        # C = 30 leaves a flatter optimum, 2.4e-3 off in one probability here (measured).
+        np.testing.assert_allclose(views.classifier, ref.predict_proba(features), atol=2e-3 if strength <= 10 else 5e-3)
+        np.testing.assert_array_equal(views.classifier.argmax(axis=1), ref.predict(features))
 
 
 BANKING77 = Path(__file__).parent / "data" / "banking77"
@@ -260,8 +265,11 @@ def test_smoothing_helps_the_seed_classifier_on_banking77_embeddings() -> None:
     def accuracy(p: np.ndarray) -> float:
         return float(np.mean(p[rows].argmax(axis=1) == labels[rows]))
 
-    plain = compute_views(vectors, graph, seeds, labels[seeds], 20, ModelSettings(feature_smoothing=0))
-    smoothed = compute_views(vectors, graph, seeds, labels[seeds], 20, ModelSettings())
+    # C = 10, the strength these figures were measured at (dense vectors now default to 30).
+    plain = compute_views(
+        vectors, graph, seeds, labels[seeds], 20, ModelSettings(feature_smoothing=0, dense_classifier_strength=10.0)
+    )
+    smoothed = compute_views(vectors, graph, seeds, labels[seeds], 20, ModelSettings(dense_classifier_strength=10.0))
     assert accuracy(smoothed.classifier) >= accuracy(plain.classifier) + 0.015
     assert accuracy(smoothed.blend(0.5)) >= accuracy(plain.blend(0.5))
 

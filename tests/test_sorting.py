@@ -144,7 +144,7 @@ def test_progress_of_every_stage_is_monotone_and_ends_at_its_total() -> None:
         docs, resolve_seeds(docs, pairs), SortSettings(cross_check_folds=3),
         on_progress=lambda stage, done, total: seen.setdefault(stage, []).append((done, total)),
     )
-    assert {"vectors", "graph", "spread", "cross-check"} <= set(seen)
+    assert {"vectors", "graph", "spread", "cross-check", "nearest seeds"} <= set(seen)
     assert seen["cross-check"] == [(0, 3), (1, 3), (2, 3), (3, 3)]
     for stage, calls in seen.items():
         done = [d for d, _ in calls]

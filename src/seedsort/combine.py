@@ -74,6 +74,14 @@ class ModelSettings:
     smoothed over (:func:`smooth_features`); None means by the kind of vectors:
     :data:`DENSE_FEATURE_SMOOTHING` for dense vectors (embeddings), 0 for sparse n-grams.
 
+    ``classifier_strength`` is the inverse L2 penalty C of the seed classifier on sparse
+    vectors, ``dense_classifier_strength`` on dense ones (:meth:`strength`). Dense features
+    are unit rows in a few hundred dimensions that all weigh in: a weaker penalty fits the
+    seeds' differences better. On BANKING77 at 10 seeds per category (sampling seeds
+    100-104, the plain 10-NN graph, blend weight 0.5, features smoothed 2 steps) C 3, 10,
+    30, 100 gave the classifier 87.05%, 87.83%, 87.99%, 87.87% and the blend 87.62%,
+    88.19%, 88.48%, 88.38% (measured).
+
     ``tol`` is the spreading tolerance of the run; ``cross_check_tol`` that of the
     cross-check's folds (:func:`cross_check`), looser by default because the folds only feed
     statistics over the seeds.
@@ -82,6 +90,7 @@ class ModelSettings:
     alpha: float = 0.99
     graph_weight: float | None = None
     classifier_strength: float = 10.0
+    dense_classifier_strength: float = 30.0
     class_mass_normalisation: bool = False
     solver: str = "cg"
     tol: float = 1e-6
@@ -94,6 +103,10 @@ class ModelSettings:
         if self.feature_smoothing is not None:
             return self.feature_smoothing
         return 0 if sp.issparse(vectors) else DENSE_FEATURE_SMOOTHING
+
+    def strength(self, vectors: sp.spmatrix | np.ndarray) -> float:
+        """The classifier's C: ``classifier_strength`` for sparse vectors, else ``dense_classifier_strength``."""
+        return self.classifier_strength if sp.issparse(vectors) else self.dense_classifier_strength
 
 
 @dataclass(frozen=True, slots=True)
@@ -254,14 +267,16 @@ def compute_views(
     seed_classes: np.ndarray,
     n_classes: int,
     settings: ModelSettings,
+    on_progress: ProgressCallback | None = None,
 ) -> Views:
     """Spread the seeds over the graph and fit the seed classifier.
 
     The classifier sees the vectors smoothed over the graph for
-    ``settings.smoothing_steps(vectors)`` steps (:func:`smooth_features`).
+    ``settings.smoothing_steps(vectors)`` steps (:func:`smooth_features`). Progress: the
+    spread's ``("spread", products, estimated_total)`` (:func:`seedsort.spreading.spread_labels`).
     """
     features = smooth_features(vectors, normalised_graph, settings.smoothing_steps(vectors))
-    return _views(features, normalised_graph, seed_rows, seed_classes, n_classes, settings)
+    return _views(features, normalised_graph, seed_rows, seed_classes, n_classes, settings, on_progress=on_progress)
 
 
 def _views(
@@ -273,6 +288,7 @@ def _views(
     settings: ModelSettings,
     rows: np.ndarray | None = None,
     initial: np.ndarray | None = None,
+    on_progress: ProgressCallback | None = None,
 ) -> Views:
     """:func:`compute_views` on features already smoothed, for every row or only ``rows``.
 
@@ -283,7 +299,7 @@ def _views(
     y = seed_matrix(seed_rows, seed_classes, n, n_classes, balanced=True)
     spread = spread_labels(
         normalised_graph, y, alpha=settings.alpha, tol=settings.tol,
-        max_iter=settings.max_iter, solver=settings.solver, initial=initial,
+        max_iter=settings.max_iter, solver=settings.solver, initial=initial, on_progress=on_progress,
     )
     scores = np.clip(spread.scores, 0.0, None)
     if settings.class_mass_normalisation:
@@ -291,7 +307,7 @@ def _views(
         scores = class_mass_normalise(scores, share)
     graph_probs, mass = to_probabilities(scores if rows is None else scores[rows])
     clf_probs = classifier_probabilities(
-        features, seed_rows, seed_classes, n_classes, settings.classifier_strength, rows=rows
+        features, seed_rows, seed_classes, n_classes, settings.strength(features), rows=rows
     )
     return Views(graph=graph_probs, mass=mass, classifier=clf_probs, spread_iterations=spread.iterations)
 

@@ -29,6 +29,7 @@ from .combine import (
     cross_check,
     fit_temperature,
 )
+from .dense import spreading_affinity
 from .errors import InputError
 from .evaluation import per_category_accuracy
 from .graph import nearest_rows, seed_reach, symmetric_affinity
@@ -101,7 +102,7 @@ class Prepared:
     affinity:
         (n, n) CSR, the symmetric kNN affinity W.
     graph:
-        (n, n) CSR, S = D^-1/2 W D^-1/2.
+        (n, n) CSR, S = D^-1/2 W D^-1/2 (for dense vectors W sharpened: :mod:`seedsort.dense`).
     settings_key:
         The vector and graph settings these were built with.
     timings:
@@ -118,8 +119,14 @@ class Prepared:
     graph_method: str = "exact"
 
 
+#: Version of how vectors and graph are computed from the same settings; a workspace's
+#: cached graph built by an older recipe is rebuilt. 2: dense vectors spread over the
+#: sharpened affinity (seedsort.dense); the approximate graph's sketch is feature hashing.
+PREPARED_RECIPE = 2
+
+
 def _prepared_key(settings: SortSettings) -> tuple[object, ...]:
-    return (settings.vectors, settings.neighbours, settings.graph)
+    return (PREPARED_RECIPE, settings.vectors, settings.neighbours, settings.graph)
 
 
 def prepare(
@@ -146,7 +153,8 @@ def prepare(
     by_id = np.argsort(np.array([doc.id for doc in documents], dtype=object), kind="stable")
     neighbours = GRAPH_BUILDERS[graph_method](vectors, settings.neighbours, on_progress=progress, tie_order=by_id)
     affinity = symmetric_affinity(neighbours, n)
-    graph = normalised_affinity(affinity)
+    # Dense vectors spread over sharpened weights (seedsort.dense); the affinity itself is kept.
+    graph = normalised_affinity(spreading_affinity(vectors, affinity))
     timings["graph"] = time.perf_counter() - started
     return Prepared(vectors, affinity, graph, _prepared_key(settings), timings, graph_method)
 
@@ -199,6 +207,7 @@ def _quick_result(
     checked: SortResult | SeedChecks,
     timings: dict[str, float],
     collection: Collection | None,
+    progress: ProgressCallback = no_progress,
 ) -> SortResult:
     """The end of :func:`sort_documents` with the seed checks of an earlier result."""
     record = checked.settings
@@ -221,6 +230,7 @@ def _quick_result(
         mislabel=mislabel,
         estimate=checked.estimated_accuracy if same_categories else None,
         per_category=checked.estimated_category_accuracy if same_categories else np.full(len(seeds.categories), np.nan),
+        progress=progress,
     )
 
 
@@ -272,15 +282,13 @@ def sort_documents(
     seed_rows, seed_classes = seeds.rows[seed_order], seeds.classes[seed_order]
 
     started = time.perf_counter()
-    progress("spread", 0, 1)
-    views = compute_views(vectors, graph, seed_rows, seed_classes, c, settings.model)
-    progress("spread", 1, 1)
+    views = compute_views(vectors, graph, seed_rows, seed_classes, c, settings.model, on_progress=progress)
     timings["spread"] = time.perf_counter() - started
 
     started = time.perf_counter()
     order_key = np.array([documents[int(r)].content_hash for r in seed_rows], dtype=object)
     if checked is not None:
-        return _quick_result(documents, seeds, settings, views, prepared, checked, timings, collection)
+        return _quick_result(documents, seeds, settings, views, prepared, checked, timings, collection, progress)
     if settings.cross_check_folds >= 2:
         held_views = cross_check(
             vectors, graph, seed_rows, seed_classes, c, settings.model, order_key, settings.cross_check_folds,
@@ -323,6 +331,7 @@ def sort_documents(
         mislabel=_possible_mislabels(held_out, seeds.classes),
         estimate=float(np.mean(seed_check[checked_rows] == seeds.classes[checked_rows])) if checked_rows.any() else None,
         per_category=per_category_accuracy(seeds.classes[checked_rows], seed_check[checked_rows], c),
+        progress=progress,
     )
 
 
@@ -361,6 +370,7 @@ def _finish(
     mislabel: np.ndarray,
     estimate: float | None,
     per_category: np.ndarray,
+    progress: ProgressCallback = no_progress,
 ) -> SortResult:
     """Blend, calibrate, decide each document's status and assemble the result.
 
@@ -373,7 +383,8 @@ def _finish(
     vectors, affinity = prepared.vectors, prepared.affinity
     seed_rows = seeds.rows[np.argsort(np.array([documents[int(r)].id for r in seeds.rows], dtype=object), kind="stable")]
     started = time.perf_counter()
-    nearest, nearest_sim = nearest_rows(vectors, seed_rows, NEAREST_SEEDS)  # ties go to the smaller id
+    # Ties go to the smaller id.
+    nearest, nearest_sim = nearest_rows(vectors, seed_rows, NEAREST_SEEDS, on_progress=progress)
     timings["nearest seeds"] = time.perf_counter() - started
 
     blended = views.blend(weight)

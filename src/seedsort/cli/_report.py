@@ -48,6 +48,7 @@ STAGE_NAMES = {
     "graph": "neighbour graph",
     "spread": "spreading labels",
     "cross-check": "checking seeds",
+    "nearest seeds": "nearest examples",
 }
 BAR_CELLS = 10
 
