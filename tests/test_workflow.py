@@ -72,6 +72,22 @@ def test_a_cached_rerun_reproduces_the_plain_run(pile: tuple[Path, Path, dict[st
         np.testing.assert_allclose(run.result.probabilities, plain.probabilities, atol=1e-6)
 
 
+def test_a_graph_cached_by_an_older_recipe_is_rebuilt(
+    pile: tuple[Path, Path, dict[str, str]], tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    """A cache is only as good as the code that filled it (common practice: version the key):
+    after the way vectors or graph are computed changes, the cached graph is not reused."""
+    import seedsort.sorting
+
+    folder, labels, _ = pile
+    monkeypatch.setattr(seedsort.sorting, "PREPARED_RECIPE", seedsort.sorting.PREPARED_RECIPE - 1)
+    older = sort_into_workspace(folder, seeds_file=labels, workspace=tmp_path / "w.sqlite")
+    monkeypatch.undo()
+    current = sort_into_workspace(folder, workspace=tmp_path / "w.sqlite")
+    again = sort_into_workspace(folder, workspace=tmp_path / "w.sqlite")
+    assert (older.graph_cached, current.graph_cached, again.graph_cached) == (False, False, True)
+
+
 def test_corrections_become_seeds_and_help(pile: tuple[Path, Path, dict[str, str]], tmp_path: Path) -> None:
     """A user reviews the twelve closest calls (answering from the dataset's own intents) and
     re-runs with the same seed file: the decisions are seeds now, and accuracy on the rest
