@@ -14,6 +14,9 @@ Parts
                       peak resident memory (RSS) during the stage. At sizes up to
                       --sklearn-max, scikit-learn LabelSpreading(kernel="knn", same k) runs
                       on the same vectors, printed as a ratio to seedsort's graph + spreading.
+  --vector-memory N   n-gram vectors of N generated tickets: seedsort's vectorise against the
+                      scikit-learn route to the same matrix (two TfidfVectorizers, stacked):
+                      seconds, the result's size and the peak memory added while building.
   --recall-sample N   recall@k of the approximate graph against the exact one on N generated
                       tickets (ties at the k-th similarity count as found), and both build times.
   --graph-speed       the exact graph (knn_cosine) and the nearest-seed search (nearest_rows,
@@ -48,7 +51,7 @@ from typing import Any
 import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
-from _tickets import banking77_pool, write_csv  # noqa: E402
+from _tickets import banking77_pool, tickets, write_csv  # noqa: E402
 
 from seedsort import Document, SortSettings, resolve_seeds, sort_documents  # noqa: E402
 from seedsort.graph import knn_cosine, symmetric_affinity  # noqa: E402
@@ -170,8 +173,6 @@ def tie_aware_recall(approx: Any, exact: Any) -> float:
 
 
 def run_recall(n: int, args: argparse.Namespace, workdir: Path) -> None:
-    from _tickets import tickets
-
     texts = [text for _, text, _ in tickets(n, seed=args.seed + 1)]
     vectors = vectorise(texts, VectorSettings(mode=args.vectors))
     print(f"\nrecall@{args.k} on {n:,} generated tickets ({args.vectors} vectors, {vectors.nnz / n:.0f} features a row)")
@@ -269,6 +270,41 @@ def run_banking77(args: argparse.Namespace) -> None:
           f"approximate {np.mean(accuracy['approximate']):.4f} ({diff:+.2f} points)")
 
 
+def sklearn_vectors(texts: list[str]) -> Any:
+    """The same matrix the scikit-learn way: two TfidfVectorizers (word 1-2, char_wb 2-5,
+    sublinear tf), each L2-normalised, stacked side by side and normalised again."""
+    import scipy.sparse as sp
+    from sklearn.feature_extraction.text import TfidfVectorizer
+    from sklearn.preprocessing import normalize
+
+    word = TfidfVectorizer(ngram_range=(1, 2), token_pattern=r"(?u)\b\w+\b", sublinear_tf=True, dtype=np.float32)
+    char = TfidfVectorizer(analyzer="char_wb", ngram_range=(2, 5), sublinear_tf=True, dtype=np.float32)
+    blocks = [normalize(block.fit_transform(texts)) for block in (word, char)]
+    return normalize(sp.hstack(blocks, format="csr"))
+
+
+def run_vector_memory(n: int, args: argparse.Namespace) -> None:
+    """seedsort's n-gram vectors against the scikit-learn route to the same matrix: seconds,
+    the result's size and the peak memory added while building it."""
+    import gc
+
+    assert SAMPLER is not None
+    texts = [text for _, text, _ in tickets(n, seed=args.seed)]
+    print(f"\nvectors of {n:,} generated tickets (tfidf, word 1-2 + char 2-5)")
+    for name, build in (("seedsort vectorise", vectorise), ("scikit-learn TfidfVectorizer x2", sklearn_vectors)):
+        gc.collect()
+        before = rss_bytes()
+        SAMPLER.reset()
+        started = time.perf_counter()
+        matrix = build(texts)
+        seconds = time.perf_counter() - started
+        added = max(SAMPLER.peak, rss_bytes()) - before
+        size = matrix.data.nbytes + matrix.indices.nbytes + matrix.indptr.nbytes
+        print(f"    {name:<32}{seconds:8.1f} s   result {size / 2**30:5.2f} GiB   peak added "
+              f"{added / 2**30:5.2f} GiB ({added / size:.1f}x the result)", flush=True)
+        del matrix
+
+
 def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__, formatter_class=argparse.RawDescriptionHelpFormatter)
     parser.add_argument("--sizes", type=int, nargs="*", default=[], help="generated corpus sizes to run end to end")
@@ -282,11 +318,15 @@ def main() -> None:
     parser.add_argument("--sklearn-max", type=int, default=20_000, help="largest size to run sklearn LabelSpreading at")
     parser.add_argument("--sketch-dims", type=int, nargs="+", default=[512], help="sketch sizes for the recall check")
     parser.add_argument("--seed", type=int, default=0, help="corpus generator seed")
+    parser.add_argument("--vector-memory", type=int, default=0,
+                        help="tickets to vectorise, seedsort against the scikit-learn route (0: skip)")
     args = parser.parse_args()
     global SAMPLER
     SAMPLER = PeakSampler()
     print(f"{os.cpu_count()} cores; numbers are wall seconds unless marked CPU")
     with tempfile.TemporaryDirectory(prefix="seedsort-scale-") as tmp:
+        if args.vector_memory:
+            run_vector_memory(args.vector_memory, args)
         if args.graph_speed:
             run_graph_speed(args)
         if args.banking77:
