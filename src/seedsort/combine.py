@@ -301,7 +301,7 @@ def _views(
         normalised_graph, y, alpha=settings.alpha, tol=settings.tol,
         max_iter=settings.max_iter, solver=settings.solver, initial=initial, on_progress=on_progress,
     )
-    scores = np.clip(spread.scores, 0.0, None)
+    scores = np.clip(spread.scores, 0.0, None, out=spread.scores)  # in place: (n, c) float64
     if settings.class_mass_normalisation:
         share = np.bincount(seed_classes, minlength=n_classes) / max(1, len(seed_classes))
         scores = class_mass_normalise(scores, share)

@@ -216,20 +216,28 @@ def _estimated_products(done: int, first: float, now: float, tol: float, cap: in
 
 
 def _residual_below(
-    s: sp.csr_matrix, y: np.ndarray, x: np.ndarray, alpha: float, tol: float, rows_at_a_time: int = 50_000
+    s: sp.csr_matrix,
+    y: np.ndarray,
+    x: np.ndarray,
+    alpha: float,
+    tol: float,
+    rows_at_a_time: int = 50_000,
+    order: np.ndarray | None = None,
 ) -> bool:
     """Whether every column of the float64 residual (1 - alpha) Y - (X - alpha S X) has norm
     below ``tol``: the CG solver's own first check, computed a block of rows at a time.
 
     Each block of S is widened to float64 on its own (exactly, float32 values are float64
     values), so the check never holds a float64 copy of S or an (n, c) residual: at
-    1,000,000 documents x 77 categories those would take ~2 GB.
+    1,000,000 documents x 77 categories those would take ~2 GB. With ``order``, row i of
+    the system is row ``order[i]`` of ``y`` (S and X already renumbered, Y not).
     """
     squares = np.zeros(y.shape[1], dtype=np.float64)
     for start in range(0, s.shape[0], rows_at_a_time):
         stop = start + rows_at_a_time
         block = sp.csr_matrix(s[start:stop], dtype=np.float64)
-        r = (1.0 - alpha) * y[start:stop] - (x[start:stop] - alpha * (block @ x))
+        y_rows = y[start:stop] if order is None else y[order[start:stop]]
+        r = (1.0 - alpha) * y_rows - (x[start:stop] - alpha * (block @ x))
         squares += _column_dots(r, r)
     return bool(np.sqrt(squares.max()) < tol) if squares.size else True
 
@@ -292,7 +300,6 @@ def spread_labels(
     y = np.asarray(y, dtype=np.float64)
     order = reverse_cuthill_mckee(sp.csr_matrix(s), symmetric_mode=True) if s.shape[0] else np.zeros(0, dtype=np.int32)
     s_ordered = sp.csr_matrix(s)[order][:, order]
-    y_ordered = y[order]
     guess = None if initial is None else np.asarray(initial, dtype=np.float64)[order]
     products, left = 0, max_iter
     progress = on_progress or no_progress
@@ -308,17 +315,22 @@ def spread_labels(
         s_ordered.dtype == np.float32 and tol >= FLOAT32_TOLERANCE and solver in FLOAT32_SOLVERS
         and s_ordered.shape[0] >= FLOAT32_MIN_DOCUMENTS
     ):
-        rough = run(s_ordered, y_ordered.astype(np.float32), alpha, tol, max_iter, guess, report)
+        # Y renumbered straight into float32, a block at a time: no (n, c) float64 copy.
+        y32 = np.empty(y.shape, dtype=np.float32)
+        for start in range(0, y.shape[0], 50_000):
+            y32[start : start + 50_000] = y[order[start : start + 50_000]]
+        rough = run(s_ordered, y32, alpha, tol, max_iter, guess, report)
+        del y32
         products, left = rough.iterations, max(1, max_iter - rough.iterations)
         guess = rough.scores.astype(np.float64)
         del rough  # at 1M documents x 77 categories its float32 scores hold 300 MB
-        if _residual_below(s_ordered, y_ordered, guess, alpha, tol):
+        if _residual_below(s_ordered, y, guess, alpha, tol, order=order):
             # The float64 check passed: the run below would stop at once with this guess.
             result = SpreadResult(guess, 1, True)
         else:
-            result = run(s_ordered.astype(np.float64), y_ordered, alpha, tol, left, guess, report)
+            result = run(s_ordered.astype(np.float64), y[order], alpha, tol, left, guess, report)
     else:
-        result = run(s_ordered.astype(np.float64), y_ordered, alpha, tol, left, guess, report)
+        result = run(s_ordered.astype(np.float64), y[order], alpha, tol, left, guess, report)
     if not result.converged:
         warnings.warn(
             f"Label spreading stopped at its cap of {max_iter} iterations before reaching "
