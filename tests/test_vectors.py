@@ -126,6 +126,19 @@ def _banking77_texts(count: int) -> list[str]:
     return frame["text"].head(count).tolist()
 
 
+def _assert_same_matrix(ours: sp.csr_matrix, ref: sp.spmatrix) -> None:
+    """``ours`` equals the reference once the reference's rows are L2-normalised (float32):
+    same shape, columns and stored entries; values equal to float32 rounding."""
+    from sklearn.preprocessing import normalize
+
+    ref = normalize(sp.csr_matrix(ref).astype(np.float32), norm="l2")
+    ref.sort_indices()
+    assert ours.shape == ref.shape
+    np.testing.assert_array_equal(ours.indptr, ref.indptr)
+    np.testing.assert_array_equal(ours.indices, ref.indices)
+    np.testing.assert_allclose(ours.data, ref.data, rtol=1e-6, atol=0)
+
+
 @pytest.fixture(params=[50_000, 333], ids=["one-chunk", "many-chunks"])
 def row_chunk(request: pytest.FixtureRequest, monkeypatch: pytest.MonkeyPatch) -> int:
     """Rows weighted and joined at a time (vectors._ROW_CHUNK): one chunk, or many with a
@@ -144,7 +157,6 @@ def test_char_block_equals_sklearn_exactly(mode: str, row_chunk: int) -> None:
     edge cases. Same columns and stored entries; values equal to float32 rounding (vectorise
     normalises the joined row once more, which can move a value by one unit in the last place)."""
     from sklearn.feature_extraction.text import HashingVectorizer, TfidfTransformer
-    from sklearn.preprocessing import normalize
 
     texts = _banking77_texts(2000) + EDGE_TEXTS
     ours = vectorise(texts, VectorSettings(mode=mode, word_ngrams=None))
@@ -158,12 +170,7 @@ def test_char_block_equals_sklearn_exactly(mode: str, row_chunk: int) -> None:
             dtype=np.float32,
         ).transform(texts)
         ref = TfidfTransformer(sublinear_tf=True).fit_transform(hashed)
-    ref = normalize(ref.astype(np.float32), norm="l2")
-    ref.sort_indices()
-    assert ours.shape == ref.shape
-    np.testing.assert_array_equal(ours.indptr, ref.indptr)
-    np.testing.assert_array_equal(ours.indices, ref.indices)
-    np.testing.assert_allclose(ours.data, ref.data, rtol=1e-6, atol=0)
+    _assert_same_matrix(ours, ref)
 
 
 @pytest.mark.parametrize("ngram_range", [(1, 2), (1, 1), (2, 2)])
@@ -172,20 +179,13 @@ def test_word_block_equals_sklearn_exactly(ngram_range: tuple[int, int], row_chu
     sublinear_tf=True), L2-normalised, on BANKING77 texts plus edge cases (words that are
     prefixes of others and underscores, which the sorted vocabulary must order as sklearn
     does). Same columns and stored entries; values equal to float32 rounding."""
-    from sklearn.preprocessing import normalize
-
     texts = _banking77_texts(2000) + EDGE_TEXTS + ["ab abc a a_b a b", "éa e a_ _ 1 10 1a"]
     ours = vectorise(texts, VectorSettings(word_ngrams=ngram_range, char_ngrams=None))
     ref = TfidfVectorizer(
         analyzer="word", ngram_range=ngram_range, token_pattern=r"(?u)\b\w+\b", lowercase=True,
         sublinear_tf=True, dtype=np.float32,
     ).fit_transform(texts)
-    ref = normalize(ref.astype(np.float32), norm="l2")
-    ref.sort_indices()
-    assert ours.shape == ref.shape
-    np.testing.assert_array_equal(ours.indptr, ref.indptr)
-    np.testing.assert_array_equal(ours.indices, ref.indices)
-    np.testing.assert_allclose(ours.data, ref.data, rtol=1e-6, atol=0)
+    _assert_same_matrix(ours, ref)
 
 
 def test_progress_reaches_every_document_once_per_bar() -> None:
@@ -212,10 +212,7 @@ def test_joined_blocks_equal_sklearn_stacked(row_chunk: int) -> None:
         ngram_range=(1, 2), token_pattern=r"(?u)\b\w+\b", sublinear_tf=True, dtype=np.float32
     ).fit_transform(texts)
     char = TfidfVectorizer(analyzer="char_wb", ngram_range=(2, 5), sublinear_tf=True, dtype=np.float32).fit_transform(texts)
-    ref = normalize(sp.hstack([normalize(word), normalize(char)], format="csr"))
-    ref.sort_indices()
+    ref = sp.hstack([normalize(word), normalize(char)], format="csr")
     ours = vectorise(texts)
-    assert ours.shape == ref.shape and ours.dtype == np.float32
-    np.testing.assert_array_equal(ours.indptr, ref.indptr)
-    np.testing.assert_array_equal(ours.indices, ref.indices)
-    np.testing.assert_allclose(ours.data, ref.data, rtol=1e-6, atol=0)
+    assert ours.dtype == np.float32
+    _assert_same_matrix(ours, ref)
