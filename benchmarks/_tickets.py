@@ -20,9 +20,8 @@ from collections.abc import Iterator
 from pathlib import Path
 
 import numpy as np
-import pandas as pd
 
-DATA = Path(__file__).resolve().parent.parent / "tests" / "data" / "banking77"
+from _banking77 import load_pool
 
 _GREETINGS = ("Hi,", "Hello,", "Hi team,", "Good morning,", "Dear support,", "Hey,")
 _SIGN_OFFS = ("Thanks", "Thank you", "Regards", "Cheers", "Kind regards", "Best")
@@ -33,11 +32,8 @@ _SYLLABLES = ("an", "bel", "cor", "da", "el", "fin", "gar", "ha", "is", "jo", "k
 
 def banking77_pool() -> tuple[list[str], np.ndarray, list[str]]:
     """BANKING77 train + test texts, their category index, and the sorted category names."""
-    frames = [pd.read_csv(DATA / name) for name in ("train.csv", "test.csv")]
-    pool = pd.concat(frames, ignore_index=True)
-    names = sorted(pool["category"].unique())
-    index = {name: i for i, name in enumerate(names)}
-    return pool["text"].tolist(), pool["category"].map(index).to_numpy(), names
+    pool = load_pool()
+    return pool.texts, np.concatenate([pool.y_train, pool.y_test]), pool.categories
 
 
 def _name(rng: np.random.Generator) -> str:

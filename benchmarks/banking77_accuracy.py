@@ -35,20 +35,19 @@ import tracemalloc
 import warnings
 from collections.abc import Callable
 from dataclasses import replace
-from pathlib import Path
 
 import numpy as np
-import pandas as pd
 from sklearn.exceptions import ConvergenceWarning
 from sklearn.linear_model import LogisticRegression
 from sklearn.metrics import f1_score, roc_auc_score
 from sklearn.semi_supervised import LabelSpreading
 
-from seedsort import Document, SortSettings, resolve_seeds, sort_documents
+from seedsort import SortSettings, resolve_seeds, sort_documents
 from seedsort.evaluation import expected_calibration_error
 from seedsort.sorting import prepare
 
-DATA = Path(__file__).resolve().parent.parent / "tests" / "data" / "banking77"
+from _banking77 import DATA, load_pool
+
 
 
 def measured(run: Callable[[], np.ndarray], trace: bool) -> tuple[np.ndarray, float, float]:
@@ -83,21 +82,15 @@ def main() -> None:
     parser.add_argument("--out-of-scope", action="store_true", help="also run the out-of-scope experiment (10 seeds/category)")
     args = parser.parse_args()
 
-    train = pd.read_csv(DATA / "train.csv")
-    test = pd.read_csv(DATA / "test.csv")
-    texts = list(train.text) + list(test.text)
-    documents = [Document.make(f"train.csv#row-{i + 1}", "train.csv", t) for i, t in enumerate(train.text)]
-    documents += [Document.make(f"test.csv#row-{i + 1}", "test.csv", t) for i, t in enumerate(test.text)]
-    categories = sorted(train.category.unique())
-    index = {c: i for i, c in enumerate(categories)}
-    y_train = train.category.map(index).to_numpy()
-    y_test = test.category.map(index).to_numpy()
-    n_train, n_classes = len(train), len(categories)
+    pool = load_pool(DATA)
+    documents, categories, index, texts = pool.documents, pool.categories, pool.index, pool.texts
+    y_train, y_test = pool.y_train, pool.y_test
+    n_train, n_classes = pool.n_train, len(categories)
     settings = SortSettings()
 
     prepared, prep_seconds, _ = measured(lambda: prepare(documents, settings), trace=False)
     vectors = prepared.vectors
-    print(f"BANKING77: {len(texts)} texts in the pool, {n_classes} categories, scored on {len(test)} test texts")
+    print(f"BANKING77: {len(texts)} texts in the pool, {n_classes} categories, scored on {len(y_test)} test texts")
     print(f"vectors + 10-NN graph built once: {prep_seconds:.1f}s "
           "(shared by the seedsort runs; not in their per-run times)\n")
 

@@ -33,16 +33,16 @@ import warnings
 from pathlib import Path
 
 import numpy as np
-import pandas as pd
 from sklearn.exceptions import ConvergenceWarning
 from sklearn.linear_model import LogisticRegression
 
-from seedsort import Document, SortSettings, resolve_seeds, sort_documents
+from seedsort import SortSettings, resolve_seeds, sort_documents
 from seedsort.combine import ModelSettings, predict
 from seedsort.sorting import prepare
 from seedsort.vectors import VectorSettings
 
-DATA = Path(__file__).resolve().parent.parent / "tests" / "data" / "banking77"
+from _banking77 import DATA, load_pool
+
 
 
 def sample_seeds(y_train: np.ndarray, n_classes: int, per_category: int, sample: int) -> np.ndarray:
@@ -76,20 +76,13 @@ def main() -> None:
     parser.add_argument("--skip-ngrams", action="store_true", help="leave out the n-gram rows")
     args = parser.parse_args()
 
-    train = pd.read_csv(DATA / "train.csv")
-    test = pd.read_csv(DATA / "test.csv")
-    texts = [str(t) for t in list(train.text) + list(test.text)]
-    documents = [Document.make(f"train.csv#row-{i + 1}", "train.csv", t) for i, t in enumerate(texts[: len(train)])]
-    documents += [Document.make(f"test.csv#row-{i + 1}", "test.csv", t) for i, t in enumerate(texts[len(train):])]
-    categories = sorted(train.category.unique())
-    index = {c: i for i, c in enumerate(categories)}
-    y_train = train.category.map(index).to_numpy()
-    y_test = test.category.map(index).to_numpy()
-    n_train, n_classes = len(train), len(categories)
-    test_rows = np.arange(n_train, len(texts))
+    pool = load_pool(DATA)
+    documents, categories, index, texts = pool.documents, pool.categories, pool.index, pool.texts
+    y_train, y_test, test_rows = pool.y_train, pool.y_test, pool.test_rows
+    n_classes = len(categories)
     print(
         f"BANKING77: {len(texts)} texts in the pool, {n_classes} categories, "
-        f"scored on {len(test)} test texts"
+        f"scored on {len(y_test)} test texts"
     )
 
     kinds = {"embeddings": SortSettings(vectors=VectorSettings(mode="embed", embedding_cache=str(args.cache)))}

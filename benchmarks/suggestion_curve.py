@@ -36,12 +36,13 @@ from dataclasses import replace
 from pathlib import Path
 
 import numpy as np
-import pandas as pd
 
-from seedsort import Document, SortSettings, resolve_seeds, sort_documents
+from seedsort import SortSettings, resolve_seeds, sort_documents
 from seedsort.results import SortResult
 from seedsort.sorting import Prepared, prepare
 from seedsort.suggest import margin_of, suggest_labels
+
+from _banking77 import load_pool
 
 HERE = Path(__file__).resolve().parent.parent
 DATA_PLACES = (HERE / "tests" / "data" / "banking77", Path("/work/shared/datasets/banking77"))
@@ -74,15 +75,10 @@ def main() -> None:
     args = parser.parse_args()
 
     folder = data_folder()
-    train = pd.read_csv(folder / "train.csv", keep_default_na=False)
-    test = pd.read_csv(folder / "test.csv", keep_default_na=False)
-    documents = [Document.make(f"train.csv#row-{i + 1}", "train.csv", t) for i, t in enumerate(train.text)]
-    documents += [Document.make(f"test.csv#row-{i + 1}", "test.csv", t) for i, t in enumerate(test.text)]
-    categories = sorted(train.category.unique())
-    index = {c: i for i, c in enumerate(categories)}
-    y_train = train.category.map(index).to_numpy()
-    y_test = test.category.map(index).to_numpy()
-    n_train, n_classes = len(train), len(categories)
+    pool = load_pool(folder)
+    documents, categories = pool.documents, pool.categories
+    y_train, y_test = pool.y_train, pool.y_test
+    n_train, n_classes = pool.n_train, len(categories)
     per_round = args.per_round or n_classes
     settings = replace(SortSettings(), cross_check_folds=args.folds)
     is_train = np.arange(len(documents)) < n_train
@@ -91,7 +87,7 @@ def main() -> None:
     started = time.perf_counter()
     prepared: Prepared = prepare(documents, settings)
     print(f"BANKING77 ({folder}): {len(documents)} texts in the pool, {n_classes} categories, "
-          f"scored on {len(test)} test texts")
+          f"scored on {len(y_test)} test texts")
     print(f"start {args.start} seeds/category, {args.rounds} rounds x {per_round} labels, {args.samples} samples, "
           f"cross_check_folds={args.folds}; vectors + graph built once in {time.perf_counter() - started:.1f}s\n",
           flush=True)
