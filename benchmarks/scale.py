@@ -55,7 +55,7 @@ from _tickets import banking77_pool, tickets, write_csv  # noqa: E402
 
 from seedsort import Document, SortSettings, resolve_seeds, sort_documents  # noqa: E402
 from seedsort.graph import knn_cosine, symmetric_affinity  # noqa: E402
-from seedsort.graph_approx import knn_cosine_approximate, rerank  # noqa: E402
+from seedsort.graph_approx import knn_cosine_approximate  # noqa: E402
 from seedsort.results import write_results  # noqa: E402
 from seedsort.seeds import column_labels  # noqa: E402
 from seedsort.sorting import prepare  # noqa: E402

@@ -273,7 +273,7 @@ def sort_documents(
         prepared = prepare(documents, settings, on_progress=progress)
     elif prepared.settings_key != _prepared_key(settings) or prepared.vectors.shape[0] != n:
         raise ValueError("prepared vectors and graph were built for other documents or settings")
-    vectors, affinity, graph = prepared.vectors, prepared.affinity, prepared.graph
+    vectors, graph = prepared.vectors, prepared.graph
     timings: dict[str, float] = dict(prepared.timings)
 
     # Seeds in id order from here on: the classifier fits (and so every probability) must not

@@ -33,7 +33,6 @@ import scipy.sparse as sp
 from sklearn.feature_extraction.text import (
     CountVectorizer,
     HashingVectorizer,
-    TfidfTransformer,
     TfidfVectorizer,
 )
 from sklearn.preprocessing import normalize

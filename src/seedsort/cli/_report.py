@@ -14,7 +14,7 @@ from contextlib import contextmanager
 from pathlib import Path
 
 from rich import box
-from rich.console import Console, Group
+from rich.console import Console
 from rich.progress import (
     BarColumn,
     MofNCompleteColumn,
