@@ -40,6 +40,7 @@ from sklearn.linear_model import LogisticRegression
 from sklearn.preprocessing import normalize
 
 from ._progress import ProgressCallback, no_progress
+from .dense import is_dense
 from .spreading import (
     class_mass_normalise,
     seed_matrix,
@@ -102,11 +103,11 @@ class ModelSettings:
         """Feature smoothing steps for these vectors (resolves None by their kind)."""
         if self.feature_smoothing is not None:
             return self.feature_smoothing
-        return 0 if sp.issparse(vectors) else DENSE_FEATURE_SMOOTHING
+        return DENSE_FEATURE_SMOOTHING if is_dense(vectors) else 0
 
     def strength(self, vectors: sp.spmatrix | np.ndarray) -> float:
         """The classifier's C: ``classifier_strength`` for sparse vectors, else ``dense_classifier_strength``."""
-        return self.classifier_strength if sp.issparse(vectors) else self.dense_classifier_strength
+        return self.dense_classifier_strength if is_dense(vectors) else self.classifier_strength
 
 
 @dataclass(frozen=True, slots=True)
