@@ -24,7 +24,7 @@ from __future__ import annotations
 
 import re
 from itertools import chain
-from collections.abc import Callable, Iterator, Sequence
+from collections.abc import Callable, Iterable, Iterator, Sequence
 from dataclasses import dataclass
 from functools import lru_cache
 
@@ -219,8 +219,23 @@ def _row_chunks(n: int) -> list[tuple[int, int]]:
     return [(start, min(n, start + _ROW_CHUNK)) for start in range(0, n, _ROW_CHUNK)] or [(0, 0)]
 
 
-def _split_rows(matrix: sp.csr_matrix) -> list[sp.csr_matrix]:
-    return [sp.csr_matrix(matrix[start:stop]) for start, stop in _row_chunks(matrix.shape[0])]
+class _HeldChunks:
+    """Row chunks of counts held in memory; :meth:`take` hands one over and drops it."""
+
+    def __init__(self, chunks: list[sp.csr_matrix | None]) -> None:
+        self.chunks = chunks
+
+    @classmethod
+    def split(cls, matrix: sp.csr_matrix) -> _HeldChunks:
+        return cls([sp.csr_matrix(matrix[start:stop]) for start, stop in _row_chunks(matrix.shape[0])])
+
+    def __iter__(self) -> Iterator[sp.csr_matrix]:
+        return (chunk for chunk in self.chunks if chunk is not None)
+
+    def take(self, number: int) -> sp.csr_matrix:
+        chunk, self.chunks[number] = self.chunks[number], None
+        assert chunk is not None, "each chunk is taken once"
+        return chunk
 
 
 def _char_block_counts(block: object, texts: Sequence[str], report: Callable[[int], None]) -> _ProductChunks:
@@ -255,25 +270,20 @@ class _ProductChunks:
         self.per_document, self.per_word = per_document, per_word
         self.spans = _row_chunks(per_document.shape[0])
 
-    def __len__(self) -> int:
-        return len(self.spans)
-
     def __iter__(self) -> Iterator[sp.csr_matrix]:
-        return (self[i] for i in range(len(self)))
+        return (self.take(number) for number in range(len(self.spans)))
 
-    def __getitem__(self, number: int) -> sp.csr_matrix:
+    def take(self, number: int) -> sp.csr_matrix:
+        """Chunk ``number``, computed now (nothing is held, so there is nothing to drop)."""
         start, stop = self.spans[number]
         counts = (self.per_document[start:stop] @ self.per_word).tocsr()  # float32 counts: exact below 2^24
         counts.sort_indices()
         return counts
 
-    def __setitem__(self, number: int, value: None) -> None:
-        """Nothing is held, so there is nothing to drop."""
-
 
 def _word_ngram_counts(
     texts: Sequence[str], ngram_range: tuple[int, int], report: Callable[[int], None]
-) -> list[sp.csr_matrix]:
+) -> _HeldChunks:
     """Word 1-2-gram counts equal to scikit-learn's CountVectorizer(analyzer="word",
     token_pattern=r"(?u)\\b\\w+\\b", lowercase=True), vocabulary in its sorted order, as
     row chunks.
@@ -321,10 +331,12 @@ def _word_ngram_counts(
         )
         counts.sum_duplicates()
         chunks.append(counts)
-    return chunks
+    return _HeldChunks(chunks)
 
 
-def _block_counts(block: object, texts: Sequence[str], report: Callable[[int], None]) -> list[sp.csr_matrix]:
+def _block_counts(
+    block: object, texts: Sequence[str], report: Callable[[int], None]
+) -> _HeldChunks | _ProductChunks:
     """One n-gram block's float32 counts, as row chunks, columns in scikit-learn's order.
 
     A block with no n-gram at all (every text empty) gives chunks with no columns.
@@ -336,13 +348,13 @@ def _block_counts(block: object, texts: Sequence[str], report: Callable[[int], N
         try:
             return _char_block_counts(counting, texts, report)
         except ValueError:  # empty vocabulary
-            return _split_rows(sp.csr_matrix((len(texts), 0), dtype=np.float32))
+            return _HeldChunks.split(sp.csr_matrix((len(texts), 0), dtype=np.float32))
     if isinstance(block, HashingVectorizer):  # stateless: chunk by chunk
         chunks = []
         for start, stop in _row_chunks(len(texts)):
             chunks.append(sp.csr_matrix(block.transform(texts[start:stop]), dtype=np.float32))
             report(stop)
-        return chunks
+        return _HeldChunks(chunks)
     if block.analyzer == "word" and block.token_pattern == _WORD.pattern and tuple(block.ngram_range) in {  # type: ignore[attr-defined]
         (1, 1), (1, 2), (2, 2)
     }:
@@ -357,10 +369,10 @@ def _block_counts(block: object, texts: Sequence[str], report: Callable[[int], N
     except ValueError:  # empty vocabulary
         whole = sp.csr_matrix((len(texts), 0), dtype=np.float32)
     report(len(texts))
-    return _split_rows(sp.csr_matrix(whole, dtype=np.float32))
+    return _HeldChunks.split(sp.csr_matrix(whole, dtype=np.float32))
 
 
-def _idf(chunks: Sequence[sp.csr_matrix], n_docs: int) -> tuple[np.ndarray | None, int, int]:
+def _idf(chunks: Iterable[sp.csr_matrix], n_docs: int) -> tuple[np.ndarray | None, int, int]:
     """(idf, columns, stored entries) of one block's count chunks, in one pass over them.
 
     Smoothed idf, log((1 + n) / (1 + df)) + 1, in float32 with scikit-learn's own steps
@@ -424,8 +436,7 @@ def _ngram_vectors(texts: Sequence[str], settings: VectorSettings, progress: Pro
     for number, (start, stop) in enumerate(_row_chunks(n)):
         parts = []
         for chunks, idf in per_block:
-            part = chunks[number]
-            chunks[number] = None  # type: ignore[call-overload]  # freed once copied
+            part = chunks.take(number)  # a held chunk is dropped once copied
             parts.append(part if idf is None else _weigh_in_place(part, idf))
         joined = sp.hstack(parts, format="csr", dtype=np.float32) if len(parts) > 1 else parts[0]
         if columns:  # sklearn's normalize rejects a matrix with no columns (all texts empty)
