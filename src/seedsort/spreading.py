@@ -194,6 +194,8 @@ FLOAT32_TOLERANCE = 1e-7
 #: where float64 keeps two orders of the same collection to ~1e-12 of each other
 #: (tests/test_sorting.py checks results against a shuffled collection).
 FLOAT32_MIN_DOCUMENTS = 20_000
+#: Rows per block where an (n, c) array is filled or checked piecewise (bounds the temporaries).
+ROWS_AT_A_TIME = 50_000
 #: Solvers that may run in float32 first. CG's recurrence keeps shrinking its residual in
 #: float32 and the float64 check corrects the rest; plain iteration's step cannot fall much
 #: below float32's spacing of the largest score (~6e-8 of it), so with heavy seed weights it
@@ -221,7 +223,7 @@ def _residual_below(
     x: np.ndarray,
     alpha: float,
     tol: float,
-    rows_at_a_time: int = 50_000,
+    rows_at_a_time: int = ROWS_AT_A_TIME,
     order: np.ndarray | None = None,
 ) -> bool:
     """Whether every column of the float64 residual (1 - alpha) Y - (X - alpha S X) has norm
@@ -317,8 +319,8 @@ def spread_labels(
     ):
         # Y renumbered straight into float32, a block at a time: no (n, c) float64 copy.
         y32 = np.empty(y.shape, dtype=np.float32)
-        for start in range(0, y.shape[0], 50_000):
-            y32[start : start + 50_000] = y[order[start : start + 50_000]]
+        for start in range(0, y.shape[0], ROWS_AT_A_TIME):
+            y32[start : start + ROWS_AT_A_TIME] = y[order[start : start + ROWS_AT_A_TIME]]
         rough = run(s_ordered, y32, alpha, tol, max_iter, guess, report)
         del y32
         products, left = rough.iterations, max(1, max_iter - rough.iterations)
