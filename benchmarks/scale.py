@@ -17,6 +17,10 @@ Parts
   --vector-memory N   n-gram vectors of N generated tickets: seedsort's vectorise against the
                       scikit-learn route to the same matrix (two TfidfVectorizers, stacked):
                       seconds, the result's size and the peak memory added while building.
+  --cross-check-tolerance N
+                      the cross-check's folds solved to the run's tolerance (1e-6) and to their
+                      own (ModelSettings.cross_check_tol) on N generated tickets: sparse
+                      products, chosen weight, temperature, held-out probability differences.
   --recall-sample N   recall@k of the approximate graph against the exact one on N generated
                       tickets (ties at the k-th similarity count as found), and both build times.
   --graph-speed       the exact graph (knn_cosine) and the nearest-seed search (nearest_rows,
@@ -172,6 +176,39 @@ def tie_aware_recall(approx: Any, exact: Any) -> float:
     return float(np.minimum(hits, valid.sum(axis=1)).sum() / max(1, valid.sum()))
 
 
+def run_cross_check_tolerance(n: int, args: argparse.Namespace) -> None:
+    """The cross-check's folds at the run's tolerance (1e-6) against their own (1e-4): sparse
+    products, the chosen graph weight, the temperature and the held-out probabilities."""
+    from dataclasses import replace as settings_with
+
+    from seedsort.combine import ModelSettings, choose_graph_weight, compute_views, cross_check, fit_temperature
+
+    rows = list(tickets(n, seed=args.seed))
+    documents = [Document.make(ticket_id, "tickets", text) for ticket_id, text, _ in rows]
+    names = sorted({category for *_, category in rows})
+    y = np.array([names.index(category) for *_, category in rows])
+    seed_rows = np.sort(np.concatenate([np.flatnonzero(y == c)[:10] for c in range(len(names))]))
+    prepared = prepare(documents, SortSettings(vectors=VectorSettings(mode=args.vectors), neighbours=args.k))
+    order_key = np.array([documents[r].content_hash for r in seed_rows], dtype=object)
+    print(f"\ncross-check folds' tolerance on {n:,} generated tickets, 10 seeds per category")
+    held_at = {}
+    for tol in (1e-6, ModelSettings().cross_check_tol):
+        model = settings_with(ModelSettings(), cross_check_tol=tol)
+        views = compute_views(prepared.vectors, prepared.graph, seed_rows, y[seed_rows], len(names), model)
+        started = time.perf_counter()
+        held = cross_check(prepared.vectors, prepared.graph, seed_rows, y[seed_rows], len(names), model, order_key,
+                           full_scores=views.spread_scores())
+        seconds = time.perf_counter() - started
+        weight = choose_graph_weight(held, y[seed_rows])
+        held_at[tol] = held.blend(weight)
+        print(f"    folds to {tol:g}: {held.spread_iterations} sparse products, {seconds:.1f} s; weight {weight}, "
+              f"temperature {fit_temperature(held_at[tol], y[seed_rows]):.4f}, "
+              f"held-out accuracy {np.mean(held_at[tol].argmax(axis=1) == y[seed_rows]):.4f}")
+    tight, loose = held_at.values()
+    print(f"    largest held-out probability difference {np.nanmax(np.abs(tight - loose)):.4f}; "
+          f"seeds whose check changed: {int(np.sum(tight.argmax(axis=1) != loose.argmax(axis=1)))}")
+
+
 def run_recall(n: int, args: argparse.Namespace, workdir: Path) -> None:
     texts = [text for _, text, _ in tickets(n, seed=args.seed + 1)]
     vectors = vectorise(texts, VectorSettings(mode=args.vectors))
@@ -318,6 +355,8 @@ def main() -> None:
     parser.add_argument("--sklearn-max", type=int, default=20_000, help="largest size to run sklearn LabelSpreading at")
     parser.add_argument("--sketch-dims", type=int, nargs="+", default=[512], help="sketch sizes for the recall check")
     parser.add_argument("--seed", type=int, default=0, help="corpus generator seed")
+    parser.add_argument("--cross-check-tolerance", type=int, default=0,
+                        help="tickets to compare the cross-check folds' tolerance on (0: skip)")
     parser.add_argument("--vector-memory", type=int, default=0,
                         help="tickets to vectorise, seedsort against the scikit-learn route (0: skip)")
     args = parser.parse_args()
@@ -327,6 +366,8 @@ def main() -> None:
     with tempfile.TemporaryDirectory(prefix="seedsort-scale-") as tmp:
         if args.vector_memory:
             run_vector_memory(args.vector_memory, args)
+        if args.cross_check_tolerance:
+            run_cross_check_tolerance(args.cross_check_tolerance, args)
         if args.graph_speed:
             run_graph_speed(args)
         if args.banking77:
