@@ -8,7 +8,8 @@ Three steps, each linear or near-linear in the number of documents ``n``:
    once from a seeded generator. The sketch's inner product is an unbiased estimate of the
    cosine similarity, with error shrinking as 1/sqrt(dims); then the sketches are
    L2-normalised. It needs no fitting pass (only the number of columns and a seed), so
-   chunks are sketched independently. Cost O(nnz) time, O(n * dims) float32 memory. In one
+   chunks are sketched independently, when needed (twice: to build, to search), never all
+   held. Cost O(nnz) time, O(chunk * dims) float32 memory. In one
    A/B run on 100,000 generated tickets (same process) it took 1.7 s CPU against 5.0 s for
    the sparse random projection (scikit-learn ``SparseRandomProjection``) it replaced, and
    on 20,000 its candidates gave a higher recall@10 (0.955 against 0.930, HNSW 32 links /
@@ -18,7 +19,7 @@ Three steps, each linear or near-linear in the number of documents ``n``:
    Yashunin 2018; faiss ``IndexHNSWSQ``, inner product, sketches stored as 8-bit codes)
    gives each document its ``candidates`` most similar sketches. Cost about
    O(n log n * links * effort * dims) to build and search; memory O(n * (dims + 8 * links))
-   bytes on top of the sketches.
+   bytes, plus the (n, candidates) lists.
 3. **Exact re-ranking.** Every candidate's true cosine similarity is computed on the
    original sparse rows, and the ``k`` best are kept, ties broken by ``tie_order`` exactly
    as :func:`seedsort.graph.knn_cosine` does. Cost O(n * candidates * nnz-per-row), in
@@ -29,12 +30,14 @@ can be lost. Recall@10 against the exact graph, on a 20,000-document generated t
 corpus, is printed by ``benchmarks/scale.py --recall-sample 20000`` (see the README for
 the measured figure). The sketch is seeded and the HNSW graph is built
 with one thread (parallel insertion depends on thread timing), so the same input gives the
-same graph. Memory: the sketches (4 * dims bytes a document), the index (dims bytes of
-codes plus the links) and O(block * candidates * nnz-per-row) for each of the two
-re-ranking blocks in flight.
+same graph. Memory: the index (dims bytes of codes plus the links a document), one chunk
+of float32 sketches, the candidate lists (8 * candidates bytes a document) and
+O(block * candidates * nnz-per-row) for each of the two re-ranking blocks in flight.
 """
 
 from __future__ import annotations
+
+from collections.abc import Iterator
 
 import numpy as np
 import scipy.sparse as sp
@@ -63,38 +66,67 @@ SEED = 0
 SKETCH_CHUNK = 32_768
 
 
+class _Sketches:
+    """Sketches of any block of rows, computed when asked (see module docstring, step 1).
+
+    The (n, dims) float32 sketch of a whole collection is 2 GB at 1,000,000 documents; the
+    index keeps its own 8-bit copy, so the sketches are computed a chunk at a time, once to
+    build the index and once to search it, and never all held (a second sketch pass costs
+    about 2 s CPU per 100,000 tickets, the figure above).
+    """
+
+    def __init__(self, vectors: sp.csr_matrix | np.ndarray, dims: int, seed: int) -> None:
+        self.n = vectors.shape[0]
+        self.hashed = sp.issparse(vectors) and vectors.shape[1] > dims
+        if self.hashed:
+            self.vectors = sp.csr_matrix(vectors)
+            rng = np.random.default_rng(seed)
+            self.bucket = rng.integers(0, dims, size=vectors.shape[1]).astype(np.int32)
+            self.sign = (rng.integers(0, 2, size=vectors.shape[1]) * 2 - 1).astype(np.float32)
+            self.dims = dims
+        else:
+            self.vectors = vectors
+            self.dims = vectors.shape[1]
+
+    def rows(self, start: int, stop: int) -> np.ndarray:
+        """L2-normalised float32 sketches of rows ``start:stop``, C-contiguous; zero rows stay zero."""
+        chunk = self.vectors[start:stop]
+        if self.hashed:
+            # Several features of a row may share a bucket: toarray() adds them up, in the
+            # row's entry order, so the sum does not depend on the chunking.
+            hashed = sp.csr_matrix(
+                (chunk.data.astype(np.float32) * self.sign[chunk.indices], self.bucket[chunk.indices], chunk.indptr),
+                shape=(chunk.shape[0], self.dims),
+            )
+            z = hashed.toarray()
+        else:
+            z = np.array(chunk.toarray() if sp.issparse(chunk) else chunk, dtype=np.float32, order="C")
+        norms = np.linalg.norm(z, axis=1, keepdims=True)
+        np.divide(z, norms, out=z, where=norms > 0)
+        return z
+
+    def chunks(self) -> Iterator[tuple[int, np.ndarray]]:
+        """(first row, sketches) for every SKETCH_CHUNK rows, in order."""
+        for start in range(0, self.n, SKETCH_CHUNK):
+            yield start, self.rows(start, min(self.n, start + SKETCH_CHUNK))
+
+
 def sketch(vectors: sp.csr_matrix | np.ndarray, dims: int = SKETCH_DIMS, *, seed: int = SEED) -> np.ndarray:
-    """L2-normalised float32 sketches of the rows (see module docstring, step 1).
+    """L2-normalised float32 sketches of the rows (see module docstring, step 1), all at once.
 
     Returns
     -------
     numpy.ndarray (n, min(dims, d)) float32, C-contiguous; all-zero rows stay zero.
     """
-    if not sp.issparse(vectors) or vectors.shape[1] <= dims:
-        dense = vectors.toarray() if sp.issparse(vectors) else vectors
-        z = np.array(dense, dtype=np.float32, order="C")
-    else:
-        csr = sp.csr_matrix(vectors)
-        rng = np.random.default_rng(seed)
-        bucket = rng.integers(0, dims, size=csr.shape[1]).astype(np.int32)
-        sign = (rng.integers(0, 2, size=csr.shape[1]) * 2 - 1).astype(np.float32)
-        z = np.empty((csr.shape[0], dims), dtype=np.float32)
-        for start in range(0, csr.shape[0], SKETCH_CHUNK):
-            chunk = csr[start : start + SKETCH_CHUNK]
-            # Several features of a row may share a bucket: toarray() adds them up, in the
-            # row's entry order, so the sum does not depend on the chunking.
-            hashed = sp.csr_matrix(
-                (chunk.data.astype(np.float32) * sign[chunk.indices], bucket[chunk.indices], chunk.indptr),
-                shape=(chunk.shape[0], dims),
-            )
-            z[start : start + chunk.shape[0]] = hashed.toarray()
-    norms = np.linalg.norm(z, axis=1, keepdims=True)
-    np.divide(z, norms, out=z, where=norms > 0)
+    sketches = _Sketches(vectors, dims, seed)
+    z = np.empty((sketches.n, sketches.dims), dtype=np.float32)
+    for start, rows in sketches.chunks():
+        z[start : start + rows.shape[0]] = rows
     return z
 
 
 def candidate_lists(
-    z: np.ndarray,
+    sketches: _Sketches,
     m: int,
     *,
     links: int = LINKS,
@@ -105,7 +137,10 @@ def candidate_lists(
     """The ``m`` rows with the largest sketch inner product, per row (HNSW graph search).
 
     The index is built with one thread, because inserting in parallel makes the graph depend
-    on thread timing; the search, which only reads the graph, uses every core.
+    on thread timing; the search, which only reads the graph, uses every core. Rows are
+    added and searched a sketch chunk at a time (a chunk's queries do not depend on the
+    others'; the index inserts each chunk's rows in a seeded order, so the graph is the same
+    for the same input).
 
     Returns
     -------
@@ -113,24 +148,29 @@ def candidate_lists(
     """
     import faiss
 
-    n, dims = z.shape
-    # Sketches stored as 8-bit codes on one range for all dimensions (the range is the data's
-    # minimum and maximum, so training is deterministic): a quarter of the memory traffic of
-    # float32. In one A/B run on 20,000 generated tickets: build 4.4 s, search 4.2 s CPU
-    # against 5.0 and 6.2 s for float32 storage, recall@10 0.940 for both.
+    n, dims = sketches.n, sketches.dims
+    # Sketches stored as 8-bit codes on one range for all dimensions: a quarter of the memory
+    # traffic of float32. In one A/B run on 20,000 generated tickets: build 4.4 s, search
+    # 4.2 s CPU against 5.0 and 6.2 s for float32 storage, recall@10 0.940 for both. The
+    # range is the minimum and maximum of the first chunk's sketches (deterministic; values
+    # outside it are clamped to its ends), the whole collection's up to SKETCH_CHUNK rows.
     index = faiss.IndexHNSWSQ(dims, faiss.ScalarQuantizer.QT_8bit_uniform, links, faiss.METRIC_INNER_PRODUCT)
     index.hnsw.efConstruction = effort
     index.hnsw.efSearch = max(search_effort, m)
+    found = np.empty((n, m), dtype=np.int64)
     before = faiss.omp_get_max_threads()
     try:
         faiss.omp_set_num_threads(1)
-        index.train(z)
-        index.add(z)
+        for start, rows in sketches.chunks():
+            if start == 0:
+                index.train(rows)
+            index.add(rows)
         faiss.omp_set_num_threads(threads or before)
-        _, found = index.search(z, m)
+        for start, rows in sketches.chunks():
+            found[start : start + rows.shape[0]] = index.search(rows, m)[1]
     finally:
         faiss.omp_set_num_threads(before)
-    return found.astype(np.int64, copy=False)
+    return found
 
 
 def rerank(
@@ -246,10 +286,8 @@ def knn_cosine_approximate(
     if k_eff == 0:
         return Neighbours(np.full((n, 0), -1, dtype=np.int32), np.zeros((n, 0), dtype=np.float32))
     progress("graph", 0, n)
-    z = sketch(vectors, dims, seed=seed)
     m = min(n, max(candidates, k_eff + 1))
-    found = candidate_lists(z, m, links=links, effort=effort, search_effort=search_effort)
-    del z
+    found = candidate_lists(_Sketches(vectors, dims, seed), m, links=links, effort=effort, search_effort=search_effort)
     return rerank(vectors, found, k_eff, tie_order=tie_order, on_progress=progress)
 
 
