@@ -174,3 +174,33 @@ def test_top_two_equals_a_stable_sort(rows: list[list[float]], rows_at_a_time: i
         np.testing.assert_array_equal(second, order[:, 1])
     else:
         assert not second.any()
+
+
+@settings(max_examples=30, deadline=None)
+@given(st.integers(1, 40), st.integers(2, 6), st.integers(1, 9), st.floats(0.0, 1.0), st.floats(0.2, 3.0), st.integers(0, 10**6))
+def test_calibrated_blocks_equal_the_whole_array_route(n: int, c: int, rows_at_a_time: int, weight: float, temperature: float, seed: int) -> None:
+    """Invariant: blending, calibrating and ranking a block of rows at a time gives the values
+    of the whole-array route (Views.blend, apply_temperature, a stable argsort of -p for the
+    top two; numpy), and each seed's confidence is the probability of its given label."""
+    from seedsort.combine import Views, apply_temperature
+    from seedsort.seeds import SeedSet
+    from seedsort.sorting import _calibrated
+
+    rng = np.random.default_rng(seed)
+    graph, clf = rng.dirichlet(np.ones(c), size=n), rng.dirichlet(np.ones(c), size=n)
+    mass = np.where(rng.random(n) < 0.2, 0.0, rng.random(n))
+    views = Views(graph, mass, clf, 0)
+    rows = np.sort(rng.choice(n, size=min(n, 3), replace=False))
+    seeds = SeedSet(rows=rows, classes=rng.integers(0, c, size=rows.size), categories=tuple(f"c{j}" for j in range(c)))
+    probs, best, second, confidence, margin, doubt = _calibrated(views, weight, temperature, seeds, rows_at_a_time)
+    blended = views.blend(weight)
+    expected = apply_temperature(blended, temperature)
+    order = np.argsort(-expected, axis=1, kind="stable")
+    np.testing.assert_array_equal(probs, expected.astype(np.float32))
+    np.testing.assert_array_equal(best, order[:, 0])
+    np.testing.assert_array_equal(second, order[:, 1])
+    whole = expected[np.arange(n), order[:, 0]]
+    np.testing.assert_array_equal(margin, whole - expected[np.arange(n), order[:, 1]])
+    whole[seeds.rows] = expected[seeds.rows, seeds.classes]
+    np.testing.assert_array_equal(confidence, whole)
+    np.testing.assert_array_equal(doubt, 1.0 - blended.max(axis=1))

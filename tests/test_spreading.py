@@ -168,6 +168,40 @@ def test_to_probabilities_rows_sum_to_one_or_are_uniform() -> None:
     np.testing.assert_allclose(mass, [8.0, 0.0, 1.0])
 
 
+@pytest.mark.parametrize("rows_at_a_time", [1, 2, 50])
+def test_to_probabilities_in_place_and_in_blocks_gives_the_same_values(rows_at_a_time: int) -> None:
+    """Invariant: normalising over the scores' own memory, a block of rows at a time, gives
+    exactly the values of the copying route (each row is normalised on its own)."""
+    scores = np.random.default_rng(5).normal(size=(9, 4))
+    scores[3] = 0.0  # no mass: uniform
+    expected_probs, expected_mass = to_probabilities(scores)
+    work = scores.copy()
+    probs, mass = to_probabilities(work, in_place=True, rows_at_a_time=rows_at_a_time)
+    assert probs is work
+    np.testing.assert_array_equal(probs, expected_probs)
+    np.testing.assert_array_equal(mass, expected_mass)
+    np.testing.assert_allclose(probs.sum(axis=1), 1.0)
+
+
+def test_float32_run_from_a_guess_meets_the_closed_form(corpus_affinity, monkeypatch) -> None:
+    """Reference: Zhou et al. (2004) closed form, solved in float64 by numpy.linalg.solve.
+    The float32 route renumbers Y and the guess into float32 a few rows at a time and checks
+    the result in float64 in the collection's order; the scores stay within a few tol."""
+    monkeypatch.setattr(spreading, "FLOAT32_MIN_DOCUMENTS", 0)
+    w, labels = corpus_affinity
+    s32 = normalised_affinity(sp.csr_matrix(w, dtype=np.float32))
+    seeds = np.flatnonzero(labels >= 0)
+    y = seed_matrix(seeds, labels[seeds], w.shape[0], len(TOPICS))
+    alpha, tol = 0.99, 1e-6
+    expected = (1 - alpha) * np.linalg.solve(np.eye(w.shape[0]) - alpha * s32.toarray().astype(np.float64), y)
+    cold = spread_labels(s32, y, alpha=alpha, tol=tol)
+    monkeypatch.setattr(spreading, "ROWS_AT_A_TIME", 7)
+    guess = expected + 0.01 * ((1 - alpha) * y - expected)
+    warm = spread_labels(s32, y, alpha=alpha, tol=tol, initial=guess)
+    assert warm.converged and warm.scores.dtype == np.float64 and warm.iterations < cold.iterations
+    np.testing.assert_allclose(warm.scores, expected, atol=10 * tol)
+
+
 @pytest.mark.parametrize("solver", SOLVERS)
 def test_float32_graph_meets_the_tolerance_of_the_float64_closed_form(corpus_affinity, solver: str, monkeypatch) -> None:
     """Reference: Zhou et al. (2004) closed form, solved in float64 by numpy.linalg.solve.

@@ -28,7 +28,11 @@ import scipy.sparse as sp
 
 def scope_components(probabilities: np.ndarray, mass: np.ndarray, degree: np.ndarray) -> np.ndarray:
     """The two raw signals, (m, 2): higher = more likely out of scope."""
-    doubt = 1.0 - np.max(probabilities, axis=1)
+    return components_from_doubt(1.0 - np.max(probabilities, axis=1), mass, degree)
+
+
+def components_from_doubt(doubt: np.ndarray, mass: np.ndarray, degree: np.ndarray) -> np.ndarray:
+    """:func:`scope_components` from ``1 - max P`` already computed (e.g. a block of rows at a time)."""
     closeness = np.asarray(mass, dtype=float) / np.sqrt(np.where(degree > 0, degree, 1.0))
     return np.column_stack([doubt, -closeness])
 
