@@ -60,6 +60,17 @@ def test_classifier_on_seed_columns_equals_sklearn_on_all_columns(model_inputs) 
     np.testing.assert_array_equal(ours.argmax(axis=1), ref.predict(vectors))
 
 
+def test_classifier_predicts_in_blocks_of_rows_as_in_one(model_inputs, monkeypatch: pytest.MonkeyPatch) -> None:
+    """Invariant: the probabilities of every row are predicted a block of rows at a time
+    (sklearn's predict_proba is row by row), so any block size gives the same values."""
+    from seedsort import combine
+
+    vectors, _ = model_inputs
+    whole = classifier_probabilities(vectors, SEED_ROWS, SEED_CLASSES, 4, 10.0)
+    monkeypatch.setattr(combine, "ROWS_AT_A_TIME", 7)
+    np.testing.assert_array_equal(classifier_probabilities(vectors, SEED_ROWS, SEED_CLASSES, 4, 10.0), whole)
+
+
 def test_unequal_seed_counts_are_weighted_as_sklearn_balanced(model_inputs) -> None:
     """Reference: sklearn LogisticRegression(class_weight="balanced"), whose weights are
     n_seeds / (n_classes * seeds_of_the_class), on seeds of unequal counts (6, 3, 3, 1)."""

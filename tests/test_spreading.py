@@ -183,6 +183,23 @@ def test_to_probabilities_in_place_and_in_blocks_gives_the_same_values(rows_at_a
     np.testing.assert_allclose(probs.sum(axis=1), 1.0)
 
 
+@pytest.mark.parametrize("float32_from", [0, 10**9])
+def test_sparse_seed_matrix_gives_the_dense_one_and_the_same_scores(corpus_affinity, monkeypatch, float32_from: int) -> None:
+    """Invariant: Y as a CSR matrix holds the dense Y's values (balanced weights included) and
+    spreads to exactly the same scores, on the float32 route (size limit lowered) and the
+    float64 one; only its memory differs."""
+    monkeypatch.setattr(spreading, "FLOAT32_MIN_DOCUMENTS", float32_from)
+    monkeypatch.setattr(spreading, "ROWS_AT_A_TIME", 7)
+    w, labels = corpus_affinity
+    s32 = normalised_affinity(sp.csr_matrix(w, dtype=np.float32))
+    seeds = np.flatnonzero(labels >= 0)[:-1]  # unequal seed counts: balanced weights differ
+    dense = seed_matrix(seeds, labels[seeds], w.shape[0], len(TOPICS), balanced=True)
+    sparse = seed_matrix(seeds, labels[seeds], w.shape[0], len(TOPICS), balanced=True, sparse=True)
+    assert sp.issparse(sparse) and sparse.nnz == seeds.size
+    np.testing.assert_array_equal(sparse.toarray(), dense)
+    np.testing.assert_array_equal(spread_labels(s32, sparse).scores, spread_labels(s32, dense).scores)
+
+
 def test_float32_run_from_a_guess_meets_the_closed_form(corpus_affinity, monkeypatch) -> None:
     """Reference: Zhou et al. (2004) closed form, solved in float64 by numpy.linalg.solve.
     The float32 route renumbers Y and the guess into float32 a few rows at a time and checks

@@ -156,9 +156,10 @@ def classifier_probabilities(
     train = vectors[seed_rows]
     # Only features some seed has can get a non-zero weight under the L2 penalty, so fitting
     # on those columns gives the same model, about 3x faster on BANKING77 (measured).
+    used = None
     if sp.issparse(train):
         used = np.unique(sp.csr_matrix(train).indices)
-        train, target = train[:, used], sp.csr_matrix(target)[:, used]
+        train = train[:, used]
     # newton-cg reaches the same optimum as lbfgs in a few Newton steps: ~7x faster on
     # BANKING77's 770 seeds x 77 categories (1.7 s against 12.8 s, measured).
     # Balanced class weights, as for the spread: with equal seed counts this is the plain fit.
@@ -167,7 +168,14 @@ def classifier_probabilities(
         # A handful of seeds can leave the solver a little short of its tolerance; the probabilities are fine.
         warnings.simplefilter("ignore", ConvergenceWarning)
         model.fit(train, seed_classes)
-    out[:, model.classes_] = model.predict_proba(target)
+    # A block of rows at a time: the seed columns of the rows (a copy of the vectors' entries
+    # there), predict_proba's (rows, c) decision values and its softmax are temporaries the
+    # size of their input (2.5 GB and 0.6 GB each at 1,000,000 documents x 77 categories).
+    for start in range(0, target.shape[0], ROWS_AT_A_TIME):
+        part = target[start : start + ROWS_AT_A_TIME]
+        if used is not None:
+            part = sp.csr_matrix(part)[:, used]
+        out[start : start + ROWS_AT_A_TIME, model.classes_] = model.predict_proba(part)
     return out
 
 
@@ -279,8 +287,21 @@ def compute_views(
     ``settings.smoothing_steps(vectors)`` steps (:func:`smooth_features`). Progress: the
     spread's ``("spread", products, estimated_total)`` (:func:`seedsort.spreading.spread_labels`).
     """
-    features = smooth_features(vectors, normalised_graph, settings.smoothing_steps(vectors))
+    features, normalised_graph = seed_inputs(vectors, normalised_graph, seed_rows, seed_classes, settings)
     return _views(features, normalised_graph, seed_rows, seed_classes, n_classes, settings, on_progress=on_progress)
+
+
+def seed_inputs(
+    vectors: sp.csr_matrix | np.ndarray,
+    normalised_graph: sp.csr_matrix,
+    seed_rows: np.ndarray,
+    seed_classes: np.ndarray,
+    settings: ModelSettings,
+) -> tuple[sp.csr_matrix | np.ndarray, sp.csr_matrix]:
+    """(classifier features, spreading graph) of a run with these seeds: the vectors smoothed
+    over the graph for ``settings.smoothing_steps(vectors)`` steps, and the graph itself.
+    The one place both come from (:func:`compute_views`, :func:`seedsort.sorting.sort_documents`)."""
+    return smooth_features(vectors, normalised_graph, settings.smoothing_steps(vectors)), normalised_graph
 
 
 def _views(
@@ -315,7 +336,7 @@ def seed_spread(
     (and class-mass normalised when the settings ask), the input of :func:`views_from_spread`."""
     n = normalised_graph.shape[0]
     # Balanced: reviews add seeds unevenly (corrections cluster in the confused categories).
-    y = seed_matrix(seed_rows, seed_classes, n, n_classes, balanced=True)
+    y = seed_matrix(seed_rows, seed_classes, n, n_classes, balanced=True, sparse=True)
     spread = spread_labels(
         normalised_graph, y, alpha=settings.alpha, tol=settings.tol,
         max_iter=settings.max_iter, solver=settings.solver, initial=initial, on_progress=on_progress,

@@ -27,8 +27,8 @@ from .combine import (
     choose_graph_weight,
     cross_check,
     fit_temperature,
+    seed_inputs,
     seed_spread,
-    smooth_features,
     views_from_spread,
 )
 from .dense import spreading_affinity
@@ -284,8 +284,8 @@ def sort_documents(
     seed_rows, seed_classes = seeds.rows[seed_order], seeds.classes[seed_order]
 
     started = time.perf_counter()
-    features = smooth_features(vectors, graph, settings.model.smoothing_steps(vectors))
-    spread = seed_spread(graph, seed_rows, seed_classes, c, settings.model, on_progress=progress)
+    features, seed_graph = seed_inputs(vectors, graph, seed_rows, seed_classes, settings.model)
+    spread = seed_spread(seed_graph, seed_rows, seed_classes, c, settings.model, on_progress=progress)
     timings["spread"] = time.perf_counter() - started
 
     def all_views() -> Views:
