@@ -21,8 +21,15 @@ Methods, for each kind of vectors (embeddings; n-gram TF-IDF, seedsort's default
                         run from the held-out seeds; on embeddings the classifier fitted on
                         graph-smoothed features (seedsort.combine.smooth_features) at C 30
                         (ModelSettings.dense_classifier_strength) and the spread run over the
-                        graph's weights raised to the power 8 (seedsort.dense)
-Printed after the table: the graph weights the default pipeline chose.
+                        graph's weights raised to the power 8 (seedsort.dense); on embeddings
+                        the weights are the cosines in the seeds' whitened metric
+                        (seedsort.dense.seed_spreading_graph)
+  seedsort, no seed metric
+                        (embeddings only) the default pipeline with
+                        ModelSettings.seed_metric_shrinkage None: the prepared graph's
+                        plain cosine weights, as before the seed metric
+Printed after the table: the graph weights the default pipeline chose and the seconds each
+seedsort row's sort_documents took (vectors and graph prepared once, not counted).
 """
 
 from __future__ import annotations
@@ -30,6 +37,7 @@ from __future__ import annotations
 import argparse
 import time
 import warnings
+from dataclasses import replace
 from pathlib import Path
 
 import numpy as np
@@ -94,11 +102,18 @@ def main() -> None:
         prepared[name] = prepare(documents, settings)
         print(f"{name}: vectors + 10-NN graph {time.perf_counter() - started:.1f} s (built once)")
 
-    plain = ModelSettings(graph_weight=0.5, feature_smoothing=0)
+    plain = ModelSettings(graph_weight=0.5, feature_smoothing=0, seed_metric_shrinkage=None)
+    runs = {f"{name}: seedsort (default)": (name, settings) for name, settings in kinds.items()}
+    if "embeddings" in kinds:
+        embed = kinds["embeddings"]
+        runs["embeddings: seedsort, no seed metric"] = (
+            "embeddings", replace(embed, model=replace(embed.model, seed_metric_shrinkage=None))
+        )
     samples = range(args.first_sample, args.first_sample + args.samples)
     for per_category in args.per_category:
         scores: dict[str, list[float]] = {}
         weights: dict[str, list[float]] = {}
+        seconds: dict[str, list[float]] = {}
         for sample in samples:
             seeds = sample_seeds(y_train, n_classes, per_category, sample)
             pairs = [(documents[r].id, categories[y_train[r]]) for r in seeds]
@@ -113,16 +128,17 @@ def main() -> None:
                 scores.setdefault(f"{name}: blend w=0.5, plain", []).append(
                     float(np.mean(guess == y_test))
                 )
+            for method, (name, settings) in runs.items():
+                started = time.perf_counter()
                 result = sort_documents(
                     documents, resolve_seeds(documents, pairs), settings, prepared=prepared[name]
                 )
+                seconds.setdefault(method, []).append(time.perf_counter() - started)
                 full = np.zeros((len(documents), n_classes))
                 full[:, [index[c] for c in result.categories]] = result.probabilities
                 guess = full[test_rows].argmax(axis=1)
-                scores.setdefault(f"{name}: seedsort (default)", []).append(
-                    float(np.mean(guess == y_test))
-                )
-                weights.setdefault(name, []).append(float(result.settings["graph_weight"]))
+                scores.setdefault(method, []).append(float(np.mean(guess == y_test)))
+                weights.setdefault(method, []).append(float(result.settings["graph_weight"]))
             print(
                 f"  {per_category}/category, sample {sample}: "
                 + ", ".join(f"{k} {100 * v[-1]:.2f}" for k, v in scores.items()),
@@ -133,8 +149,10 @@ def main() -> None:
         for method, values in scores.items():
             v = 100 * np.asarray(values)
             print(f"{method:<42} {v.mean():>6.2f}% {v.min():>6.2f}% {v.max():>6.2f}%")
-        for name, chosen in weights.items():
-            print(f"graph weight chosen by seedsort on {name}: {chosen}")
+        for method, chosen in weights.items():
+            print(f"graph weight chosen, {method}: {chosen}")
+        for method, taken in seconds.items():
+            print(f"seconds per sort_documents, {method}: mean {np.mean(taken):.1f} ({', '.join(f'{t:.1f}' for t in taken)})")
         print(flush=True)
 
 

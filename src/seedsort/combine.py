@@ -40,7 +40,7 @@ from sklearn.linear_model import LogisticRegression
 from sklearn.preprocessing import normalize
 
 from ._progress import ProgressCallback, no_progress
-from .dense import is_dense
+from .dense import SEED_METRIC_SHRINKAGE, is_dense, seed_spreading_graph
 from .spreading import (
     ROWS_AT_A_TIME,
     SpreadResult,
@@ -89,6 +89,10 @@ class ModelSettings:
     ``tol`` is the spreading tolerance of the run; ``cross_check_tol`` that of the
     cross-check's folds (:func:`cross_check`), looser by default because the folds only feed
     statistics over the seeds.
+
+    ``seed_metric_shrinkage``: on dense vectors the graph's weights are re-computed in the
+    seeds' shrunk within-class whitened metric (:func:`seedsort.dense.seed_spreading_graph`,
+    each cross-check fold from its own training seeds); None keeps the prepared graph.
     """
 
     alpha: float = 0.99
@@ -101,6 +105,7 @@ class ModelSettings:
     max_iter: int = 1000
     feature_smoothing: int | None = None
     cross_check_tol: float = CROSS_CHECK_TOLERANCE
+    seed_metric_shrinkage: float | None = SEED_METRIC_SHRINKAGE
 
     def smoothing_steps(self, vectors: sp.spmatrix | np.ndarray) -> int:
         """Feature smoothing steps for these vectors (resolves None by their kind)."""
@@ -298,9 +303,14 @@ def seed_inputs(
     seed_classes: np.ndarray,
     settings: ModelSettings,
 ) -> tuple[sp.csr_matrix | np.ndarray, sp.csr_matrix]:
-    """(classifier features, spreading graph) of a run with these seeds: the vectors smoothed
-    over the graph for ``settings.smoothing_steps(vectors)`` steps, and the graph itself.
-    The one place both come from (:func:`compute_views`, :func:`seedsort.sorting.sort_documents`)."""
+    """(classifier features, spreading graph) of a run with these seeds: the graph, on dense
+    vectors re-weighted in the seeds' metric (:func:`seedsort.dense.seed_spreading_graph`;
+    otherwise the given graph itself), and the vectors smoothed over it for
+    ``settings.smoothing_steps(vectors)`` steps. The one place both come from
+    (:func:`compute_views`, :func:`seedsort.sorting.sort_documents`)."""
+    normalised_graph = seed_spreading_graph(
+        vectors, normalised_graph, seed_rows, seed_classes, settings.seed_metric_shrinkage
+    )
     return smooth_features(vectors, normalised_graph, settings.smoothing_steps(vectors)), normalised_graph
 
 
@@ -437,8 +447,11 @@ def cross_check(
     graph, clf = np.full((s, c), np.nan), np.full((s, c), np.nan)
     mass = np.full(s, np.nan)
     products = 0
-    # The smoothed features do not depend on the seeds: one smoothing serves every fold.
-    features = smooth_features(vectors, normalised_graph, settings.smoothing_steps(vectors))
+    # Without a seed metric the smoothed features do not depend on the seeds: one smoothing
+    # serves every fold.
+    features = None if is_dense(vectors) and settings.seed_metric_shrinkage is not None else smooth_features(
+        vectors, normalised_graph, settings.smoothing_steps(vectors)
+    )
     progress = on_progress or no_progress
     used_folds = min(folds, int(fold.max()) + 1 if fold.size else 0)
     for f in range(used_folds):
@@ -449,8 +462,16 @@ def cross_check(
             continue
         learnable = np.isin(seed_classes[held], seed_classes[train])
         rows = np.flatnonzero(held)[learnable]
+        # Dense vectors: the fold's graph (and so its smoothed features) from its own training
+        # seeds' metric (seedsort.dense), so no held-out label shapes its own prediction.
+        fold_graph = seed_spreading_graph(
+            vectors, normalised_graph, seed_rows[train], seed_classes[train], settings.seed_metric_shrinkage
+        )
+        fold_features = features if features is not None else smooth_features(
+            vectors, fold_graph, settings.smoothing_steps(vectors)
+        )
         views = _views(
-            features, normalised_graph, seed_rows[train], seed_classes[train], n_classes, settings,
+            fold_features, fold_graph, seed_rows[train], seed_classes[train], n_classes, settings,
             rows=seed_rows[rows],
             initial=_fold_guess(full_scores, seed_classes, train, solves_in_float32(normalised_graph, settings.tol, settings.solver), settings.solver),
         )
