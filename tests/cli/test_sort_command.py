@@ -152,6 +152,23 @@ def test_interrupt_exits_130(pile: Path, capsys: pytest.CaptureFixture[str], mon
     assert not (pile / "r.csv").exists()
 
 
+def test_interrupt_while_reporting_says_the_results_file_is_complete(
+    pile: Path, capsys: pytest.CaptureFixture[str], monkeypatch: pytest.MonkeyPatch
+) -> None:
+    """Ctrl-C after the results file is written (while the report is drawn) must not claim
+    that nothing was written: exit 130, and the message names the complete file."""
+    def interrupted(*args: object, **kwargs: object) -> None:
+        raise KeyboardInterrupt
+
+    monkeypatch.setattr("seedsort.cli._report.Reporter.sort_report", interrupted)
+    out = pile / "r.csv"
+    code, _, stderr = run(["sort", str(pile / "docs"), "--seeds", str(pile / "seeds.csv"), "--out", str(out)], capsys)
+    assert code == 130
+    assert f"already written in full: {out}" in stderr and "no results file" not in stderr
+    with out.open(newline="", encoding="utf-8") as handle:
+        assert len(list(csv.DictReader(handle))) == len(list((pile / "docs").iterdir()))
+
+
 def test_no_command_prints_help_and_exits_2(capsys: pytest.CaptureFixture[str]) -> None:
     code, _, stderr = run([], capsys)
     assert code == 2

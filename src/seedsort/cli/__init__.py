@@ -305,6 +305,7 @@ def _run_sort(args: argparse.Namespace, reporter: Reporter) -> int:
             run = sort_into_workspace(args.path, workspace=workspace, **options)  # type: ignore[arg-type]
             result = run.result
     written = write_results(result, args.out)
+    _WRITTEN.append(written)
     own = [str(w.message) for w in caught if issubclass(w.category, SeedsortWarning)]
     reporter.sort_report(result, written=written, warnings=own, show=args.show, source=args.path)
     if run is not None:
@@ -374,8 +375,10 @@ def _run_export(args: argparse.Namespace, reporter: Reporter) -> int:
         written = []
         if args.out:
             written.append(("results", write_results(state.result, args.out), len(state.result)))
+            _WRITTEN.append(written[-1][1])
         if args.history:
             written.append(("label history", write_label_history(state.history, args.history), len(state.history)))
+            _WRITTEN.append(written[-1][1])
         plan = None
         if args.copy_to:
             plan = copy_into_category_folders(
@@ -393,6 +396,11 @@ class _UsageError(Exception):
     pass
 
 
+#: Files this command has written in full so far: what an interrupt's message must not deny
+#: (Ctrl-C can land while the report is drawn, after the results file is complete).
+_WRITTEN: list[Path] = []
+
+
 def main(argv: Sequence[str] | None = None) -> int:
     """Entry point of the ``seedsort`` command; returns the exit code."""
     from . import _interrupt
@@ -406,6 +414,7 @@ def main(argv: Sequence[str] | None = None) -> int:
 
 
 def _main(argv: Sequence[str] | None) -> int:
+    _WRITTEN.clear()
     parser = build_parser()
     args = parser.parse_args(argv)
     if args.command is None:
@@ -431,8 +440,10 @@ def _main(argv: Sequence[str] | None) -> int:
         os.dup2(devnull, sys.stdout.fileno())
         return EXIT_OK
     except KeyboardInterrupt:
-        print("seedsort: interrupted; no results file was written (the workspace keeps every "
-              "decision saved before).", file=sys.stderr)
+        done = (f"already written in full: {', '.join(str(path) for path in _WRITTEN)}" if _WRITTEN
+                else "no results file was written")
+        print(f"seedsort: interrupted; {done} (the workspace keeps every decision saved before).",
+              file=sys.stderr)
         return EXIT_INTERRUPTED
     except OSError as exc:
         if args.debug:
