@@ -21,6 +21,7 @@ sys.path[:0] = [str(HERE), str(HERE.parents[1] / "src")]  # runs from a checkout
 
 from _memory_session import CATEGORIES, MemoryReviewSession, banking77_items  # noqa: E402
 
+from seedsort.cli import _interrupt  # noqa: E402
 from seedsort.cli._review import run_review  # noqa: E402
 
 
@@ -34,7 +35,8 @@ def main() -> int:
     session = MemoryReviewSession(
         banking77_items(long_document=args.long), CATEGORIES, args.log, reverse_on_refresh=args.reverse_on_refresh
     )
-    outcome = run_review(session, refresh_every=args.refresh_every)
+    with _interrupt.recorded():  # as the seedsort command runs it (seedsort.cli.main)
+        outcome = run_review(session, refresh_every=args.refresh_every)
     print("OUTCOME " + json.dumps(asdict(outcome)), flush=True)
     return 0
 

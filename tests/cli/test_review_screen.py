@@ -240,6 +240,31 @@ def test_ctrl_c_quits_and_says_decisions_are_saved(terminal: Start, log: Path, i
     assert read_log(log) == [{"call": "decide", "id": items[0].id, "category": items[0].category}]
 
 
+def test_key_wait_stops_on_a_ctrl_c_that_was_swallowed() -> None:
+    """A Ctrl-C whose KeyboardInterrupt a callback swallowed is still recorded
+    (seedsort.cli._interrupt); the key wait checks the record at every poll instead of waiting
+    for keys that never come (common practice: a polling loop checks its stop flag)."""
+    import os
+    import threading
+
+    from seedsort.cli import _interrupt
+    from seedsort.cli._review import _Keys
+
+    read_end, write_end = os.pipe()
+    unblock = threading.Timer(5.0, os.write, (write_end, b"q"))  # a key, should the wait hang
+    try:
+        with _interrupt.recorded():
+            _interrupt._pressed.set()  # what the handler records before its raise is lost
+            unblock.start()
+            with pytest.raises(KeyboardInterrupt):
+                _Keys(read_end, lambda: (80, 24)).read((80, 24))
+    finally:
+        unblock.cancel()
+        unblock.join()
+        os.close(read_end)
+        os.close(write_end)
+
+
 def test_small_terminal_60x15(terminal: Start, log: Path) -> None:
     long_item = banking77_items(long_document=True)[0]
     term = terminal(60, 15, "--long")

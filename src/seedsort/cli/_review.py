@@ -29,6 +29,7 @@ from rich.console import Console
 from rich.text import Text
 
 from ..review import ReviewItem, ReviewSession
+from . import _interrupt
 from ._review_frame import Frame, clean_text, render_frame, wrap_text
 
 #: Why a review ended: the quit key, end of scripted input, Ctrl-C, or nothing left to review.
@@ -384,6 +385,9 @@ class _Keys:
 
     def read(self, drawn: tuple[int, int]) -> str | None:
         while True:
+            # A Ctrl-C whose KeyboardInterrupt some callback swallowed (see _interrupt) would
+            # otherwise leave the screen waiting for keys: checked at every poll.
+            _interrupt.check()
             # Keys typed quickly or pasted arrive in one read; hand them out one at a time.
             key = self._take() if self.pending else None
             if key is not None:
