@@ -40,7 +40,7 @@ from sklearn.linear_model import LogisticRegression
 from sklearn.preprocessing import normalize
 
 from ._progress import ProgressCallback, no_progress
-from .dense import SEED_METRIC_SHRINKAGE, is_dense, seed_spreading_graph
+from .dense import SEED_METRIC_SHRINKAGE, is_dense, seed_spreading_graph, uses_seed_metric
 from .spreading import (
     ROWS_AT_A_TIME,
     SpreadResult,
@@ -447,10 +447,10 @@ def cross_check(
     graph, clf = np.full((s, c), np.nan), np.full((s, c), np.nan)
     mass = np.full(s, np.nan)
     products = 0
-    # Without a seed metric the smoothed features do not depend on the seeds: one smoothing
-    # serves every fold.
-    features = None if is_dense(vectors) and settings.seed_metric_shrinkage is not None else smooth_features(
-        vectors, normalised_graph, settings.smoothing_steps(vectors)
+    # Without a seed metric the graph and the smoothed features do not depend on the seeds:
+    # one smoothing serves every fold.
+    shared = None if uses_seed_metric(vectors, settings.seed_metric_shrinkage) else seed_inputs(
+        vectors, normalised_graph, seed_rows, seed_classes, settings
     )
     progress = on_progress or no_progress
     used_folds = min(folds, int(fold.max()) + 1 if fold.size else 0)
@@ -462,13 +462,10 @@ def cross_check(
             continue
         learnable = np.isin(seed_classes[held], seed_classes[train])
         rows = np.flatnonzero(held)[learnable]
-        # Dense vectors: the fold's graph (and so its smoothed features) from its own training
-        # seeds' metric (seedsort.dense), so no held-out label shapes its own prediction.
-        fold_graph = seed_spreading_graph(
-            vectors, normalised_graph, seed_rows[train], seed_classes[train], settings.seed_metric_shrinkage
-        )
-        fold_features = features if features is not None else smooth_features(
-            vectors, fold_graph, settings.smoothing_steps(vectors)
+        # With the seed metric, the fold's graph (and so its smoothed features) from its own
+        # training seeds (seedsort.dense), so no held-out label shapes its own prediction.
+        fold_features, fold_graph = shared if shared is not None else seed_inputs(
+            vectors, normalised_graph, seed_rows[train], seed_classes[train], settings
         )
         views = _views(
             fold_features, fold_graph, seed_rows[train], seed_classes[train], n_classes, settings,

@@ -212,6 +212,12 @@ def seed_metric_affinity(
     return out
 
 
+def uses_seed_metric(vectors: sp.spmatrix | np.ndarray, shrinkage: float | None) -> bool:
+    """Whether :func:`seed_spreading_graph` re-weights the graph for these vectors (so the
+    graph, and the features smoothed over it, depend on the seeds)."""
+    return is_dense(vectors) and shrinkage is not None
+
+
 def seed_spreading_graph(
     vectors: sp.spmatrix | np.ndarray,
     normalised_graph: sp.csr_matrix,
@@ -228,7 +234,7 @@ def seed_spreading_graph(
     ``shrinkage``). Sparse vectors, ``shrinkage`` None, or fewer than two categories among
     the seeds: ``normalised_graph`` itself (not a copy).
     """
-    if not is_dense(vectors) or shrinkage is None or np.unique(seed_classes).size < 2:
+    if not uses_seed_metric(vectors, shrinkage) or np.unique(seed_classes).size < 2:
         return normalised_graph
     metric = within_class_whitening(np.asarray(vectors)[seed_rows], seed_classes, shrinkage)
     return normalised_affinity(seed_metric_affinity(vectors, normalised_graph, metric, power))

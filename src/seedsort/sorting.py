@@ -46,7 +46,7 @@ from .seeds import (
     resolve_seeds,
 )
 from .sources import Collection, Document, TableColumns, read_collection
-from .spreading import normalised_affinity
+from .spreading import ROWS_AT_A_TIME, normalised_affinity
 from .vectors import VectorSettings, vectorise
 
 SNIPPET_CHARS = 200
@@ -347,7 +347,7 @@ def sort_documents(
     )
 
 
-def _top_two(probs: np.ndarray, rows_at_a_time: int = 50_000) -> tuple[np.ndarray, np.ndarray]:
+def _top_two(probs: np.ndarray, rows_at_a_time: int = ROWS_AT_A_TIME) -> tuple[np.ndarray, np.ndarray]:
     """Each row's most and second most probable column; ties go to the smaller column.
 
     The same as the first two columns of a stable argsort of -probs, without sorting every
@@ -367,7 +367,7 @@ def _top_two(probs: np.ndarray, rows_at_a_time: int = 50_000) -> tuple[np.ndarra
 
 
 def _calibrated(
-    views: Views, weight: float, temperature: float, seeds: SeedSet, rows_at_a_time: int = 50_000
+    views: Views, weight: float, temperature: float, seeds: SeedSet, rows_at_a_time: int = ROWS_AT_A_TIME
 ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
     """Blend and calibrate every document's probabilities, a block of rows at a time.
 
