@@ -17,6 +17,12 @@ Parts
   --vector-memory N   n-gram vectors of N generated tickets: seedsort's vectorise against the
                       scikit-learn route to the same matrix (two TfidfVectorizers, stacked):
                       seconds, the result's size and the peak memory added while building.
+  --reading N         reading N generated tickets of email length (--ticket-parts generated
+                      tickets joined into each text) from one CSV file, each way in its own
+                      process: the texts held in memory, and spooled (seedsort's default budget,
+                      HELD_TEXT_BYTES, beyond which texts go to a temporary file): seconds, peak
+                      RSS, RSS held after reading, bytes spooled; then one pass over every
+                      text (what the vectors stage does) in each.
   --cross-check-tolerance N
                       the cross-check's folds solved to the run's tolerance (1e-6) and to their
                       own (ModelSettings.cross_check_tol) on N generated tickets: sparse
@@ -342,6 +348,58 @@ def run_vector_memory(n: int, args: argparse.Namespace) -> None:
         del matrix
 
 
+def _status_bytes(field: str) -> int:
+    """A memory figure of this process from /proc/self/status (Linux), in bytes."""
+    with open("/proc/self/status", encoding="ascii") as handle:
+        for line in handle:
+            if line.startswith(field + ":"):
+                return int(line.split()[1]) * 1024
+    raise RuntimeError(f"{field} not in /proc/self/status")
+
+
+def _read_in_child(path: Path, held: int | None, results: Any) -> None:
+    started = time.perf_counter()
+    collection = read_collection(path, columns=TableColumns(text=("text",), id="id", label="label"),
+                                 held_text_bytes=held)
+    seconds = time.perf_counter() - started
+    peak, after = _status_bytes("VmHWM"), _status_bytes("VmRSS")
+    started = time.perf_counter()
+    characters = sum(len(doc.text) for doc in collection.documents)
+    results.put((seconds, peak, after, collection.spooled_bytes, time.perf_counter() - started, characters))
+
+
+def run_reading(n: int, args: argparse.Namespace, workdir: Path) -> None:
+    """Reading with the texts held against spooled, each in a fresh process (forked, so the
+    peak of one does not hide the other's)."""
+    import csv
+    import multiprocessing
+
+    from seedsort.sources import HELD_TEXT_BYTES
+
+    path = workdir / f"long-tickets-{n}.csv"
+    parts = args.ticket_parts
+    stream = tickets(n * parts, seed=args.seed)
+    with path.open("w", encoding="utf-8", newline="") as handle:
+        writer = csv.writer(handle)
+        writer.writerow(["id", "text", "label"])
+        for number in range(n):
+            texts = [next(stream)[1] for _ in range(parts)]
+            writer.writerow([f"L{number:07d}", "\n\n".join(texts), ""])
+    size = path.stat().st_size
+    print(f"\nreading {n:,} generated tickets of {parts} parts each ({size / 2**20:.0f} MiB CSV, "
+          f"{size / n:.0f} bytes a ticket)")
+    context = multiprocessing.get_context("fork")
+    for name, held in (("texts held in memory", 2**62), (f"spooled beyond {HELD_TEXT_BYTES / 2**20:.0f} MiB", None)):
+        results = context.Queue()
+        child = context.Process(target=_read_in_child, args=(path, held, results))
+        child.start()
+        seconds, peak, after, spooled, text_pass, characters = results.get()
+        child.join()
+        print(f"    {name:<28}{seconds:7.1f} s   peak {peak / 2**30:5.2f} GiB   held after {after / 2**30:5.2f} GiB   "
+              f"spooled {spooled / 2**20:7.0f} MiB   one pass over the texts {text_pass:5.1f} s "
+              f"({characters / 2**20:.0f} Mi characters)", flush=True)
+
+
 def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__, formatter_class=argparse.RawDescriptionHelpFormatter)
     parser.add_argument("--sizes", type=int, nargs="*", default=[], help="generated corpus sizes to run end to end")
@@ -357,6 +415,10 @@ def main() -> None:
     parser.add_argument("--seed", type=int, default=0, help="corpus generator seed")
     parser.add_argument("--cross-check-tolerance", type=int, default=0,
                         help="tickets to compare the cross-check folds' tolerance on (0: skip)")
+    parser.add_argument("--reading", type=int, default=0,
+                        help="tickets of email length to read, texts held against spooled (0: skip)")
+    parser.add_argument("--ticket-parts", type=int, default=10,
+                        help="generated tickets joined into each text for --reading (default 10)")
     parser.add_argument("--vector-memory", type=int, default=0,
                         help="tickets to vectorise, seedsort against the scikit-learn route (0: skip)")
     args = parser.parse_args()
@@ -364,6 +426,8 @@ def main() -> None:
     SAMPLER = PeakSampler()
     print(f"{os.cpu_count()} cores; numbers are wall seconds unless marked CPU")
     with tempfile.TemporaryDirectory(prefix="seedsort-scale-") as tmp:
+        if args.reading:
+            run_reading(args.reading, args, Path(tmp))
         if args.vector_memory:
             run_vector_memory(args.vector_memory, args)
         if args.cross_check_tolerance:

@@ -38,6 +38,7 @@ import unicodedata
 from collections.abc import Callable, Iterable, Mapping
 from dataclasses import dataclass
 from datetime import datetime, timezone
+from functools import partial
 from pathlib import Path, PurePosixPath
 from types import ModuleType
 from typing import Any
@@ -49,7 +50,7 @@ from ._progress import ProgressCallback, no_progress
 from .errors import InputError
 from .results import NEAREST_SEEDS, SortResult, result_format
 from .seeds import EXAMPLES_PREFIX
-from .sources import TableColumns, read_collection
+from .sources import Document, TableColumns, read_collection
 from .workspace import ORIGINS
 
 LABEL_ORIGINS = ORIGINS
@@ -415,15 +416,16 @@ def _matches_snippet(text: str, snippet: str) -> bool:
     return flat == snippet
 
 
-def _container_texts(root: Path, source: str, columns: TableColumns) -> dict[str, str]:
-    """Fragment (after ``#``) -> text of every document read from one table or mailbox file."""
+def _container_documents(root: Path, source: str, columns: TableColumns) -> dict[str, Document]:
+    """Fragment (after ``#``) -> every document read from one table or mailbox file (their
+    texts kept by the reading's spool, not held here)."""
     collection = read_collection(root / source, columns=columns)
-    texts = {}
+    found = {}
     for doc in collection.documents:
         _, sep, fragment = doc.id.partition(f"{doc.source}#")
         if sep:
-            texts[fragment] = doc.text
-    return texts
+            found[fragment] = doc
+    return found
 
 
 def _blocked(destination: Path, parts: tuple[str, ...]) -> bool:
@@ -438,30 +440,37 @@ def _blocked(destination: Path, parts: tuple[str, ...]) -> bool:
 
 def _row_text(
     result: SortResult, row: int, root: Path, texts: Mapping[str, str] | None, columns: TableColumns,
-    containers: dict[str, dict[str, str]],
-) -> str | None:
-    """The text of a table row or mailbox message, if it still reads as the run saw it."""
+    containers: dict[str, dict[str, Document]],
+) -> Callable[[], str] | None:
+    """How to get the text of a table row or mailbox message, if it still reads as the run
+    saw it. A getter, not the text: a plan of a million rows holds no texts, each is read
+    again when its file is written."""
     doc_id, source = result.ids[row], result.sources[row]
     text = texts.get(doc_id) if texts is not None else None
-    if text is None:
+    fetch: Callable[[], str] | None = None
+    if text is not None:
+        fetch = partial(texts.__getitem__, doc_id)  # type: ignore[union-attr]
+    else:
         if source not in containers:  # read each table or mailbox once, for all its documents
             found = (root / source).is_file()
-            containers[source] = _container_texts(root, source, columns) if found else {}
-        if doc_id.startswith(source + "#"):
-            text = containers[source].get(doc_id[len(source) + 1 :])
-    return text if text is not None and _matches_snippet(text, result.snippets[row]) else None
+            containers[source] = _container_documents(root, source, columns) if found else {}
+        doc = containers[source].get(doc_id[len(source) + 1 :]) if doc_id.startswith(source + "#") else None
+        if doc is not None:
+            text, fetch = doc.text, partial(getattr, doc, "text")
+    return fetch if text is not None and _matches_snippet(text, result.snippets[row]) else None
 
 
 def _plan(
     result: SortResult, root: Path, texts: Mapping[str, str] | None, columns: TableColumns
-) -> tuple[list[str], list[PlannedCopy], list[str | None], list[LeftOut]]:
-    """Category folder names, the copies (with the text to write, None for a file copy), and the left out."""
+) -> tuple[list[str], list[PlannedCopy], list[Callable[[], str] | None], list[LeftOut]]:
+    """Category folder names, the copies (with a getter of the text to write, None for a file
+    copy), and the left out."""
     names = _Names()
     folders = [names.claim_folder(safe_name(c)) for c in result.categories]
     plan: list[PlannedCopy] = []
-    payload: list[str | None] = []
+    payload: list[Callable[[], str] | None] = []
     left_out: list[LeftOut] = []
-    containers: dict[str, dict[str, str]] = {}
+    containers: dict[str, dict[str, Document]] = {}
     for i, doc_id in enumerate(result.ids):
         category = int(result.assigned[i])
         source = result.sources[i]
@@ -589,13 +598,13 @@ def copy_into_category_folders(
     return outcome
 
 
-def _write_one(dest: Path, item: PlannedCopy, text: str | None) -> None:
+def _write_one(dest: Path, item: PlannedCopy, text: Callable[[], str] | None) -> None:
     target = dest.joinpath(*item.target.split("/"))
     target.parent.mkdir(parents=True, exist_ok=True)
     try:
         if text is not None:
             with open(target, "x", encoding="utf-8", newline="") as out:
-                out.write(text)
+                out.write(text())
             return
         assert item.source is not None
         with open(item.source, "rb") as src, open(target, "xb") as out:

@@ -45,7 +45,7 @@ from .seeds import (
     read_labels_file,
     resolve_seeds,
 )
-from .sources import Collection, Document, TableColumns, read_collection
+from .sources import Collection, Document, DocumentTexts, TableColumns, read_collection
 from .spreading import ROWS_AT_A_TIME, normalised_affinity
 from .vectors import VectorSettings, vectorise
 
@@ -146,7 +146,7 @@ def prepare(
     graph_method = resolve_graph(settings.graph, n)  # an unknown name fails before any work
     started = time.perf_counter()
     progress("vectors", 0, n)
-    vectors = vectorise([doc.text for doc in documents], settings.vectors, on_progress=progress)
+    vectors = vectorise(DocumentTexts(documents), settings.vectors, on_progress=progress)
     progress("vectors", n, n)
     timings["vectors"] = time.perf_counter() - started
 
@@ -556,7 +556,8 @@ def gather(
     seed_file = read_labels_file(seeds_file) if seeds_file is not None else []
     if not documents:
         raise InputError(f"No readable documents in {path}; seedsort reads .txt .md .html .eml .mbox .csv .tsv .jsonl files.")
-    merged = Collection(root=collection.root, documents=tuple(documents), skipped=tuple(skipped), notes=tuple(notes))
+    merged = Collection(root=collection.root, documents=tuple(documents), skipped=tuple(skipped), notes=tuple(notes),
+                        spooled_bytes=collection.spooled_bytes)
     return Gathered(merged, label_column, examples, seed_file)
 
 

@@ -17,7 +17,7 @@ import hashlib
 import math
 import os
 import time
-from collections.abc import Sequence
+from collections.abc import Iterator, Mapping, Sequence
 from datetime import datetime
 from dataclasses import asdict, dataclass, fields, replace
 from pathlib import Path
@@ -446,6 +446,24 @@ class WorkspaceReview:
         )
 
 
+class TextsById(Mapping[str, str]):
+    """Document id -> text over a list of documents, each text read (from the documents'
+    spool) only when asked: an export's look-ups without a dict of every text."""
+
+    def __init__(self, documents: Sequence[Document]) -> None:
+        self._documents = documents
+        self._row = {doc.id: row for row, doc in enumerate(documents)}
+
+    def __getitem__(self, doc_id: str) -> str:
+        return self._documents[self._row[doc_id]].text
+
+    def __iter__(self) -> Iterator[str]:
+        return iter(self._row)
+
+    def __len__(self) -> int:
+        return len(self._row)
+
+
 @dataclass(frozen=True)
 class WorkspaceState:
     """A workspace's current state for export: the latest assignments with every decision so far.
@@ -457,14 +475,15 @@ class WorkspaceState:
     root:
         The folder the last run read.
     texts:
-        Document id -> text, as the workspace holds them.
+        Document id -> text, as the workspace holds them (:class:`TextsById`: each text read
+        when asked).
     history:
         Every label event, oldest first.
     """
 
     result: SortResult
     root: str
-    texts: dict[str, str]
+    texts: Mapping[str, str]
     history: list[LabelEvent]
 
 
@@ -491,8 +510,7 @@ def current_state(
             )
             for event in store.history()
         ]
-        texts = {doc.id: doc.text for doc in session.documents}
-        return WorkspaceState(replace(session.result, root=root), root, texts, history)
+        return WorkspaceState(replace(session.result, root=root), root, TextsById(session.documents), history)
 
 
 def write_suggestions(items: Sequence[ReviewItem], path: str | os.PathLike[str]) -> Path:

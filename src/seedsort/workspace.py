@@ -36,7 +36,7 @@ import numpy as np
 import scipy.sparse as sp
 
 from .errors import InputError
-from .sources import Document
+from .sources import Document, TextSpool
 
 SCHEMA_VERSION = 2
 APPLICATION_ID = 0x53454544  # "SEED": marks the file as a seedsort workspace
@@ -285,37 +285,44 @@ class Workspace:
         """
         known = dict(self._db.execute("SELECT id, content_hash FROM documents"))
         now = _now()
-        new: list[tuple[object, ...]] = []
-        changed: list[tuple[object, ...]] = []
+        # Positions first, rows when written: the texts are read (from the documents' spool)
+        # as executemany takes each row, never all held.
+        new: list[int] = []
+        changed: list[int] = []
         moved: list[tuple[object, ...]] = []
         for position, doc in enumerate(documents):
             stored = known.pop(doc.id, None)
             if stored is None:
-                new.append((doc.id, doc.source, doc.content_hash, doc.text, position, now))
+                new.append(position)
             elif stored != doc.content_hash:
-                changed.append((doc.source, doc.content_hash, doc.text, position, now, doc.id))
+                changed.append(position)
             else:
                 moved.append((position, doc.source, doc.id))
         with self._transaction() as db:
             db.executemany(
                 "INSERT INTO documents(id, source, content_hash, text, position, present, first_seen) "
                 "VALUES (?, ?, ?, ?, ?, 1, ?)",
-                new,
+                ((d.id, d.source, d.content_hash, d.text, p, now) for p, d in ((p, documents[p]) for p in new)),
             )
             db.executemany(
                 "UPDATE documents SET source=?, content_hash=?, text=?, position=?, present=1, changed_at=? WHERE id=?",
-                changed,
+                ((d.source, d.content_hash, d.text, p, now, d.id) for p, d in ((p, documents[p]) for p in changed)),
             )
             db.executemany("UPDATE documents SET position=?, source=?, present=1 WHERE id=?", moved)
             db.executemany("UPDATE documents SET present=0 WHERE id=?", [(gone,) for gone in known])
         return SyncCounts(new=len(new), changed=len(changed), unchanged=len(moved), gone=len(known))
 
     def documents(self) -> list[Document]:
-        """The documents of the last read, in the order they were read."""
+        """The documents of the last read, in the order they were read.
+
+        Their texts are kept as a fresh read's are (a :class:`~seedsort.sources.TextSpool`:
+        in memory up to its budget, beyond it in a temporary file), rows fetched one at a time.
+        """
         rows = self._db.execute(
             "SELECT id, source, text, content_hash FROM documents WHERE present=1 ORDER BY position"
         )
-        return [Document(id=i, source=s, text=t, content_hash=h) for i, s, t, h in rows]
+        spool = TextSpool()
+        return [Document(id=i, source=s, text=t, content_hash=h, spool=spool) for i, s, t, h in rows]
 
     # -- decisions -----------------------------------------------------------------------
 

@@ -9,12 +9,15 @@ on anything it had to guess. Supported: ``.txt``/``.md``, ``.html``/``.htm``, ``
 from __future__ import annotations
 
 from ._collection import Collection, SkippedFile, TableColumns
-from ._document import Document, content_hash
+from ._document import HELD_TEXT_BYTES, Document, DocumentTexts, TextSpool, content_hash
 from ._folder import read_collection
 
 __all__ = [
     "Collection",
     "Document",
+    "DocumentTexts",
+    "HELD_TEXT_BYTES",
+    "TextSpool",
     "SkippedFile",
     "TableColumns",
     "content_hash",

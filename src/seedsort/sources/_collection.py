@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
-from ._document import Document
+from ._document import Document, TextSpool
 
 
 @dataclass(frozen=True, slots=True)
@@ -60,12 +60,16 @@ class Collection:
         Files and parts of files that gave no document, with the reason.
     notes:
         Things the user should know: guessed table columns, legacy 8-bit decoding, ...
+    spooled_bytes:
+        Bytes of text kept in the reading's temporary file rather than in memory
+        (:class:`~seedsort.sources._document.TextSpool`; 0 when every text fits its budget).
     """
 
     root: str
     documents: tuple[Document, ...]
     skipped: tuple[SkippedFile, ...]
     notes: tuple[str, ...]
+    spooled_bytes: int = 0
 
     @property
     def empty(self) -> tuple[str, ...]:
@@ -75,8 +79,16 @@ class Collection:
 
 @dataclass(slots=True)
 class FileReading:
-    """What one reader got out of one file, in order; the folder walk concatenates these."""
+    """What one reader got out of one file, in order; the folder walk concatenates these.
+
+    ``spool`` keeps the documents' texts (:class:`TextSpool`); None keeps them in memory.
+    """
 
     documents: list[Document] = field(default_factory=list)
     skipped: list[SkippedFile] = field(default_factory=list)
     notes: list[str] = field(default_factory=list)
+    spool: TextSpool | None = None
+
+    def add(self, id: str, source: str, text: str, label: str | None = None) -> None:
+        """Append a document made from ``text`` (hashed, then kept by the spool)."""
+        self.documents.append(Document.make(id, source, text, label, spool=self.spool))

@@ -6,14 +6,20 @@ then legacy 8-bit cp1252 (Windows-1252), the usual encoding of old exports and n
 which decodes every byte except the five it leaves undefined (0x81, 0x8D, 0x8F, 0x90,
 0x9D). A file with a NUL byte in its first 8 KiB and no UTF-16 mark is binary.
 
-Cost: one pass over the bytes per encoding tried (at most three).
+Cost: one pass over the bytes per encoding tried (at most three). Tables and mailboxes,
+which can be gigabytes, are not decoded whole: :func:`file_encoding` checks the encodings
+in the same order on the file a chunk at a time, and :func:`open_decoded` then reads the
+file as a stream of text lines in the encoding found.
 """
 
 from __future__ import annotations
 
 import codecs
+import io
 import re
-from typing import TYPE_CHECKING
+from dataclasses import dataclass
+from pathlib import Path
+from typing import TYPE_CHECKING, TextIO
 
 if TYPE_CHECKING:
     from ._collection import FileReading
@@ -29,6 +35,8 @@ LEGACY_ENCODINGS = frozenset({CP1252})
 """Encodings that were a guess rather than a certainty; readers note them for the user."""
 
 _UTF16_BOMS = (codecs.BOM_UTF16_LE, codecs.BOM_UTF16_BE)
+#: Bytes decoded at a time when a file's encoding is checked.
+_CHECK_CHUNK = 1 << 20
 _SURROGATE = re.compile("[\ud800-\udfff]")
 
 
@@ -131,3 +139,65 @@ def decode_file_text(data: bytes, rel: str, reading: FileReading) -> str:
     if encoding in LEGACY_ENCODINGS:
         reading.notes.append(legacy_note(rel, encoding))
     return text
+
+
+@dataclass(frozen=True, slots=True)
+class FileEncoding:
+    """How to decode a file: the codec, after skipping ``skip`` bytes (a stray UTF-8 mark)."""
+
+    codec: str
+    skip: int = 0
+
+
+def _decodes(path: Path, encoding: FileEncoding) -> bool:
+    decoder = codecs.getincrementaldecoder(encoding.codec)()
+    with open(path, "rb") as handle:
+        handle.seek(encoding.skip)
+        try:
+            while chunk := handle.read(_CHECK_CHUNK):
+                decoder.decode(chunk)
+            decoder.decode(b"", final=True)
+        except UnicodeDecodeError:
+            return False
+    return True
+
+
+def file_encoding(path: Path) -> FileEncoding:
+    """The encoding :func:`decode_bytes` would choose for the file's bytes, found by streaming.
+
+    Same order of trust; each candidate is checked by an incremental decoder over 1 MiB
+    chunks, so memory stays at one chunk whatever the file's size. Cost: one pass over the
+    file per encoding tried (at most two).
+
+    Raises
+    ------
+    UndecodableError
+        If no accepted encoding decodes the file.
+    """
+    with open(path, "rb") as handle:
+        head = handle.read(4)
+    if head.startswith(codecs.BOM_UTF8):
+        # A UTF-8 mark on a file edited later in a legacy editor: cp1252 after the mark.
+        candidates = (FileEncoding(UTF8_SIG), FileEncoding(CP1252, len(codecs.BOM_UTF8)))
+    elif has_utf16_bom(head):
+        candidates = (FileEncoding(UTF16),)
+    else:
+        candidates = (FileEncoding(UTF8), FileEncoding(CP1252))
+    for candidate in candidates:
+        if _decodes(path, candidate):
+            return candidate
+    raise UndecodableError("could not decode as UTF-8, UTF-16 or cp1252")
+
+
+def open_decoded(path: Path, encoding: FileEncoding) -> TextIO:
+    """The file as text lines in ``encoding``, newlines normalised to ``\\n`` (universal
+    newlines: the same text :func:`decode_bytes` gives), byte-order mark dropped."""
+    handle = open(path, "rb")
+    handle.seek(encoding.skip)
+    return io.TextIOWrapper(handle, encoding=encoding.codec, newline=None)
+
+
+def note_encoding(encoding: FileEncoding, rel: str, reading: FileReading) -> None:
+    """Add the legacy 8-bit note to ``reading`` when ``encoding`` was a guess."""
+    if encoding.codec in LEGACY_ENCODINGS:
+        reading.notes.append(legacy_note(rel, encoding.codec))

@@ -22,15 +22,15 @@ from __future__ import annotations
 
 import io
 import re
-from collections.abc import Iterator
+from collections.abc import Iterable, Iterator
 from email import policy
 from email.message import EmailMessage, Message
 from email.parser import BytesParser
+from pathlib import Path
 from typing import cast
 
 from ._collection import FileReading, SkippedFile, TableColumns
 from ._decode import UndecodableError, clean_text, decode_bytes, normalise_newlines
-from ._document import Document
 from ._html import html_to_text
 
 _REASON_CHARS = 100
@@ -260,14 +260,17 @@ def text_of_message_bytes(data: bytes) -> str:
         raise BrokenMessageError(reason) from exc
 
 
-def split_mbox(data: bytes) -> Iterator[bytes]:
-    """The messages of an mbox file, each without its ``From `` envelope line.
+def split_mbox(data: bytes | Iterable[bytes]) -> Iterator[bytes]:
+    """The messages of an mbox (its bytes, or its lines as a binary file yields them), each
+    without its ``From `` envelope line.
 
     Splits as ``mailbox.mbox`` does: every line starting with ``From `` begins a message;
     anything before the first such line is ignored. ``>From `` escapes are left as they are.
+    Given a file, only one message is held at a time.
     """
+    lines = io.BytesIO(data) if isinstance(data, bytes) else data
     current: list[bytes] | None = None
-    for line in io.BytesIO(data):  # splits on b"\n" only, as mailbox's readline does
+    for line in lines:  # splits on b"\n" only, as mailbox's readline does
         if line.startswith(b"From "):
             if current is not None:
                 yield b"".join(current)
@@ -278,32 +281,30 @@ def split_mbox(data: bytes) -> Iterator[bytes]:
         yield b"".join(current)
 
 
-def read_eml(data: bytes, rel: str, columns: TableColumns) -> FileReading:
+def read_eml(path: Path, rel: str, columns: TableColumns, reading: FileReading) -> None:
     """Read one ``.eml`` file: one document, or one skipped entry if it is broken."""
-    reading = FileReading()
     try:
-        reading.documents.append(Document.make(rel, rel, text_of_message_bytes(data)))
+        reading.add(rel, rel, text_of_message_bytes(path.read_bytes()))
     except BrokenMessageError as exc:
         reading.skipped.append(SkippedFile(rel, f"broken message: {exc}"))
-    return reading
 
 
-def read_mbox(data: bytes, rel: str, columns: TableColumns) -> FileReading:
-    """Read an mbox: a document ``<rel>#message-N`` per message (N from 1)."""
-    reading = FileReading()
+def read_mbox(path: Path, rel: str, columns: TableColumns, reading: FileReading) -> None:
+    """Read an mbox: a document ``<rel>#message-N`` per message (N from 1), streamed from
+    the file a message at a time."""
     broken: list[tuple[int, str]] = []
     total = 0
-    for total, raw in enumerate(split_mbox(data), start=1):
-        try:
-            text = text_of_message_bytes(raw)
-        except BrokenMessageError as exc:
-            broken.append((total, str(exc)))
-            continue
-        reading.documents.append(Document.make(f"{rel}#message-{total}", rel, text))
+    with open(path, "rb") as handle:
+        for total, raw in enumerate(split_mbox(handle), start=1):
+            try:
+                text = text_of_message_bytes(raw)
+            except BrokenMessageError as exc:
+                broken.append((total, str(exc)))
+                continue
+            reading.add(f"{rel}#message-{total}", rel, text)
     if total == 0:
         reading.skipped.append(
             SkippedFile(rel, "no messages (an mbox starts each message with a 'From ' line)")
         )
     for number, reason in broken:
         reading.skipped.append(SkippedFile(rel, f"broken message {number} of {total}: {reason}"))
-    return reading

@@ -2,13 +2,16 @@
 
 Files are listed first (hidden files and folders, whose names start with ".", are left
 out silently; symlinked folders are not followed, so a link loop cannot trap the walk),
-sorted by their relative path, then read one at a time, each opened ``"rb"`` and read
-whole. A file that is binary, undecodable, of an unsupported type or unreadable becomes
-a ``SkippedFile``; only a table whose named column is missing stops the read
-(``InputError``), because every table of the folder would fail the same way.
+sorted by their relative path, then read one at a time: a note, web page or message
+whole, a table or mailbox as a stream (rows and messages as they come). A file that is
+binary, undecodable, of an unsupported type or unreadable becomes a ``SkippedFile``; only
+a table whose named column is missing stops the read (``InputError``), because every table
+of the folder would fail the same way. The documents' texts go to one
+:class:`~seedsort.sources._document.TextSpool`, which keeps them in memory up to its budget
+and in a temporary file beyond it.
 
-Cost: one read of every file; memory holds one file (and its decoded text) at a time
-besides the documents.
+Cost: one read of every file (two of a table: the encoding check, the parse); memory holds
+one note or message (or one table row), the documents' records and the spool's budget.
 """
 
 from __future__ import annotations
@@ -20,32 +23,28 @@ from pathlib import Path
 from .._progress import ProgressCallback, no_progress
 from ..errors import InputError
 from ._collection import Collection, FileReading, SkippedFile, TableColumns
-from ._decode import UndecodableError, clean_text, decode_file_text, looks_binary
-from ._document import Document
+from ._decode import BINARY_SNIFF_BYTES, UndecodableError, clean_text, decode_file_text, looks_binary
+from ._document import Document, TextSpool
 from ._email import read_eml, read_mbox
 from ._html import html_to_text
 from ._tables import read_csv, read_jsonl, read_tsv
 
-Reader = Callable[[bytes, str, TableColumns], FileReading]
-"""Turns a file's bytes (and its relative path, for ids) into documents."""
+Reader = Callable[[Path, str, TableColumns, FileReading], None]
+"""Reads a file (its relative path for ids) into documents, added to the reading."""
 
 PROGRESS_STAGE = "read"
 
 
-def read_plain(data: bytes, rel: str, columns: TableColumns) -> FileReading:
+def read_plain(path: Path, rel: str, columns: TableColumns, reading: FileReading) -> None:
     """Read a ``.txt`` or ``.md`` file as one document, text as it is."""
-    reading = FileReading()
-    text = decode_file_text(data, rel, reading)
-    reading.documents.append(Document.make(rel, rel, clean_text(text)))
-    return reading
+    text = decode_file_text(path.read_bytes(), rel, reading)
+    reading.add(rel, rel, clean_text(text))
 
 
-def read_html(data: bytes, rel: str, columns: TableColumns) -> FileReading:
+def read_html(path: Path, rel: str, columns: TableColumns, reading: FileReading) -> None:
     """Read an ``.html``/``.htm`` file as one document of its visible text."""
-    reading = FileReading()
-    text = decode_file_text(data, rel, reading)
-    reading.documents.append(Document.make(rel, rel, clean_text(html_to_text(text))))
-    return reading
+    text = decode_file_text(path.read_bytes(), rel, reading)
+    reading.add(rel, rel, clean_text(html_to_text(text)))
 
 
 READERS: dict[str, Reader] = {
@@ -92,8 +91,11 @@ def list_files(root: Path) -> tuple[list[tuple[str, Path]], list[SkippedFile]]:
     return found, unlisted
 
 
-def read_file(path: Path, rel: str, columns: TableColumns) -> FileReading:
+def read_file(path: Path, rel: str, columns: TableColumns, spool: TextSpool | None = None) -> FileReading:
     """Read one file with the reader for its extension; problems become skipped entries.
+
+    ``spool`` keeps the documents' texts (None: in memory). A file that fails part way
+    (unreadable, undecodable) gives no documents, only its skipped entry.
 
     Raises
     ------
@@ -107,17 +109,18 @@ def read_file(path: Path, rel: str, columns: TableColumns) -> FileReading:
         return FileReading(skipped=[SkippedFile(rel, f"unsupported file type {what}")])
     if not path.is_file():  # a FIFO would block forever, a device would never end
         return FileReading(skipped=[SkippedFile(rel, "not a regular file")])
+    reading = FileReading(spool=spool)
     try:
         with open(path, "rb") as handle:
-            data = handle.read()
+            head = handle.read(BINARY_SNIFF_BYTES)
+        if looks_binary(head):
+            return FileReading(skipped=[SkippedFile(rel, "binary file")])
+        reader(path, rel, columns, reading)
     except OSError as exc:
         return FileReading(skipped=[SkippedFile(rel, f"could not read: {exc.strerror or exc}")])
-    if looks_binary(data):
-        return FileReading(skipped=[SkippedFile(rel, "binary file")])
-    try:
-        return reader(data, rel, columns)
     except UndecodableError as exc:
         return FileReading(skipped=[SkippedFile(rel, str(exc))])
+    return reading
 
 
 def read_collection(
@@ -125,6 +128,7 @@ def read_collection(
     *,
     columns: TableColumns = TableColumns(),
     on_progress: ProgressCallback | None = None,
+    held_text_bytes: int | None = None,
 ) -> Collection:
     """Read every supported file under a folder (or one file) into documents.
 
@@ -136,6 +140,10 @@ def read_collection(
         Which table columns hold the text, ids and labels; ``None`` fields are guessed.
     on_progress:
         Called as ``on_progress("read", files_done, files_total)``, first with 0 done.
+    held_text_bytes:
+        Texts kept in memory (characters) before the rest go to a temporary file
+        (:class:`~seedsort.sources._document.TextSpool`; None: its default budget); reading
+        them back is transparent.
 
     Returns
     -------
@@ -161,13 +169,15 @@ def read_collection(
 
     documents: list[Document] = []
     notes: list[str] = []
+    spool = TextSpool(held_text_bytes)
     report(PROGRESS_STAGE, 0, len(files))
     for done, (rel, file_path) in enumerate(files, start=1):
-        reading = read_file(file_path, rel, columns)
+        reading = read_file(file_path, rel, columns, spool)
         documents.extend(reading.documents)
         skipped.extend(reading.skipped)
         notes.extend(reading.notes)
         report(PROGRESS_STAGE, done, len(files))
     return Collection(
-        root=str(root), documents=tuple(documents), skipped=tuple(skipped), notes=tuple(notes)
+        root=str(root), documents=tuple(documents), skipped=tuple(skipped), notes=tuple(notes),
+        spooled_bytes=spool.spooled_bytes,
     )

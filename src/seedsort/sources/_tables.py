@@ -8,23 +8,25 @@ and listed, the rest is read.
 
 Which columns hold the text, the ids and the labels comes from ``TableColumns``; a name
 left as ``None`` is guessed from the header (and, for the text, from the first 200 rows)
-and the guess is written into the notes. Rows are streamed: only those first 200 rows are
-held back while guessing. Cost: linear in the size of the file.
+and the guess is written into the notes. The file is streamed: its encoding is checked a
+chunk at a time (:func:`seedsort.sources._decode.file_encoding`), then rows are parsed from
+the decoded lines as they come and each row's text goes to the reading's spool; only those
+first 200 rows are held back while guessing. Cost: linear in the size of the file (two
+passes: the encoding check, the parse); memory: one row and the documents' records.
 """
 
 from __future__ import annotations
 
 import csv
-import io
 import itertools
 import json
 from collections.abc import Iterable, Iterator
 from dataclasses import dataclass
+from pathlib import Path
 
 from ..errors import InputError
 from ._collection import FileReading, SkippedFile, TableColumns
-from ._decode import clean_text, decode_file_text
-from ._document import Document
+from ._decode import clean_text, file_encoding, note_encoding, open_decoded
 
 GUESS_ROWS = 200
 """How many rows are looked at to guess the text column."""
@@ -176,7 +178,7 @@ def _rows_to_documents(
             while key in used_ids:
                 key, suffix = f"row-{number}-{suffix}", suffix + 1
         used_ids.add(key)
-        reading.documents.append(Document.make(f"{rel}#{key}", rel, clean_text(text), label))
+        reading.add(f"{rel}#{key}", rel, clean_text(text), label)
     if fallback_rows:
         listed = ", ".join(str(n) for n in fallback_rows[:_MAX_LISTED_ID_ROWS])
         more = ", ..." if len(fallback_rows) > _MAX_LISTED_ID_ROWS else ""
@@ -199,15 +201,23 @@ def _sniff_delimiter(text: str) -> str:
 
 
 def _read_delimited(
-    data: bytes, rel: str, delimiter: str | None, columns: TableColumns
-) -> FileReading:
-    reading = FileReading()
-    text = decode_file_text(data, rel, reading)
+    path: Path, rel: str, delimiter: str | None, columns: TableColumns, reading: FileReading
+) -> None:
+    encoding = file_encoding(path)
+    note_encoding(encoding, rel, reading)
     if delimiter is None:
-        delimiter = _sniff_delimiter(text)
+        with open_decoded(path, encoding) as handle:
+            delimiter = _sniff_delimiter(handle.read(_SNIFF_CHARS + 1))
+    with open_decoded(path, encoding) as handle:
+        _parse_delimited(handle, rel, delimiter, columns, reading)
+
+
+def _parse_delimited(
+    lines: Iterable[str], rel: str, delimiter: str, columns: TableColumns, reading: FileReading
+) -> None:
     # Only the delimiter is taken from the sniffer: its quote guesses are unreliable,
     # and RFC 4180 double quotes are what spreadsheet exports write.
-    reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter)
+    reader = csv.reader(lines, delimiter=delimiter)
     failure: list[str] = []
 
     def records() -> Iterator[list[str]]:
@@ -223,7 +233,7 @@ def _read_delimited(
     if header is None:
         reason = failure[0] if failure else "empty table (no header row)"
         reading.skipped.append(SkippedFile(rel, reason))
-        return reading
+        return
     display: dict[str, str] = {}
     positions: dict[str, int] = {}
     for position, raw_name in enumerate(header):
@@ -243,17 +253,16 @@ def _read_delimited(
         reading.skipped.append(SkippedFile(rel, failure[0]))
     elif not reading.documents:
         reading.skipped.append(SkippedFile(rel, "empty table (a header row, no data rows)"))
-    return reading
 
 
-def read_csv(data: bytes, rel: str, columns: TableColumns) -> FileReading:
+def read_csv(path: Path, rel: str, columns: TableColumns, reading: FileReading) -> None:
     """Read a ``.csv`` file (delimiter sniffed among ``,`` ``;`` and tab)."""
-    return _read_delimited(data, rel, None, columns)
+    _read_delimited(path, rel, None, columns, reading)
 
 
-def read_tsv(data: bytes, rel: str, columns: TableColumns) -> FileReading:
+def read_tsv(path: Path, rel: str, columns: TableColumns, reading: FileReading) -> None:
     """Read a ``.tsv`` file (tab-delimited, RFC 4180 quoting)."""
-    return _read_delimited(data, rel, "\t", columns)
+    _read_delimited(path, rel, "\t", columns, reading)
 
 
 def _cell(value: object) -> str:
@@ -264,21 +273,26 @@ def _cell(value: object) -> str:
     return json.dumps(value, ensure_ascii=False)
 
 
-def read_jsonl(data: bytes, rel: str, columns: TableColumns) -> FileReading:
+def read_jsonl(path: Path, rel: str, columns: TableColumns, reading: FileReading) -> None:
     """Read a ``.jsonl`` file: one JSON object per non-blank line.
 
     Row N (for ``#row-N`` ids) counts non-blank lines, bad ones included; the skipped
     entries name the line number as an editor shows it. The columns are the keys seen in
     the first ``GUESS_ROWS`` objects, so a named column must appear in one of those.
     """
-    reading = FileReading()
-    text = decode_file_text(data, rel, reading)
+    encoding = file_encoding(path)
+    note_encoding(encoding, rel, reading)
+    with open_decoded(path, encoding) as handle:
+        _parse_jsonl(handle, rel, columns, reading)
+
+
+def _parse_jsonl(lines: Iterable[str], rel: str, columns: TableColumns, reading: FileReading) -> None:
     bad_lines: list[tuple[int, str]] = []
     display: dict[str, str] = {}
 
     def objects() -> Iterator[tuple[int, Row]]:
         number = 0
-        for line_number, line in enumerate(io.StringIO(text, newline="\n"), start=1):
+        for line_number, line in enumerate(lines, start=1):
             if not line.strip():
                 continue
             number += 1
@@ -309,4 +323,3 @@ def read_jsonl(data: bytes, rel: str, columns: TableColumns) -> FileReading:
         reading.skipped.append(SkippedFile(rel, f"{extra} more bad lines not listed"))
     if not sample and not bad_lines:
         reading.skipped.append(SkippedFile(rel, "empty table (no JSON objects)"))
-    return reading
