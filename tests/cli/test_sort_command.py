@@ -169,6 +169,34 @@ def test_interrupt_while_reporting_says_the_results_file_is_complete(
         assert len(list(csv.DictReader(handle))) == len(list((pile / "docs").iterdir()))
 
 
+def test_ctrl_c_that_surfaces_as_an_import_error_still_exits_130(
+    pile: Path, capsys: pytest.CaptureFixture[str], monkeypatch: pytest.MonkeyPatch
+) -> None:
+    """Ctrl-C landing inside a compiled module's initialisation comes out of the import as
+    "ImportError: initialization failed" (seen in tests/cli/test_interrupt.py on a loaded
+    machine). The press was recorded, so the run must end as interrupted (130), not as an
+    internal error; the same error without a press stays an internal error (exit 1)."""
+    from seedsort.cli import _interrupt
+
+    def interrupted_import(*args: object, **kwargs: object) -> None:
+        _interrupt._pressed.set()  # what the SIGINT handler records before its raise
+        raise ImportError("initialization failed")
+
+    monkeypatch.setattr("seedsort.workflow.sort_into_workspace", interrupted_import)
+    argv = ["sort", str(pile / "docs"), "--seeds", str(pile / "seeds.csv"), "--out", str(pile / "r.csv")]
+    code, _, stderr = run(argv, capsys)
+    assert code == 130
+    assert "interrupted; no results file was written" in stderr and "internal error" not in stderr
+
+    def failed_import(*args: object, **kwargs: object) -> None:
+        raise ImportError("initialization failed")
+
+    monkeypatch.setattr("seedsort.workflow.sort_into_workspace", failed_import)
+    code, _, stderr = run(argv, capsys)
+    assert code == 1
+    assert "internal error: ImportError" in stderr
+
+
 def test_no_command_prints_help_and_exits_2(capsys: pytest.CaptureFixture[str]) -> None:
     code, _, stderr = run([], capsys)
     assert code == 2

@@ -414,6 +414,8 @@ def main(argv: Sequence[str] | None = None) -> int:
 
 
 def _main(argv: Sequence[str] | None) -> int:
+    from . import _interrupt
+
     _WRITTEN.clear()
     parser = build_parser()
     args = parser.parse_args(argv)
@@ -440,18 +442,18 @@ def _main(argv: Sequence[str] | None) -> int:
         os.dup2(devnull, sys.stdout.fileno())
         return EXIT_OK
     except KeyboardInterrupt:
-        done = (f"already written in full: {', '.join(str(path) for path in _WRITTEN)}" if _WRITTEN
-                else "no results file was written")
-        print(f"seedsort: interrupted; {done} (the workspace keeps every decision saved before).",
-              file=sys.stderr)
-        return EXIT_INTERRUPTED
+        return _interrupted()
     except OSError as exc:
+        if _interrupt.pressed():  # Ctrl-C came out as another error (see _interrupt)
+            return _interrupted()
         if args.debug:
             traceback.print_exc()
         where = f" ({exc.filename})" if getattr(exc, "filename", None) else ""
         print(f"seedsort: error: {exc.strerror or exc}{where}.", file=sys.stderr)
         return EXIT_DATA
     except Exception as exc:  # the one boundary: anything else is our bug
+        if _interrupt.pressed():  # Ctrl-C came out as another error (see _interrupt)
+            return _interrupted()
         if args.debug:
             traceback.print_exc()
         print(
@@ -460,6 +462,14 @@ def _main(argv: Sequence[str] | None) -> int:
             file=sys.stderr,
         )
         return EXIT_DATA
+
+
+def _interrupted() -> int:
+    done = (f"already written in full: {', '.join(str(path) for path in _WRITTEN)}" if _WRITTEN
+            else "no results file was written")
+    print(f"seedsort: interrupted; {done} (the workspace keeps every decision saved before).",
+          file=sys.stderr)
+    return EXIT_INTERRUPTED
 
 
 if __name__ == "__main__":  # pragma: no cover

@@ -6,6 +6,9 @@ callback), it is printed as "Exception ignored" and the run goes on: seen here w
 landed while the library was being imported (tests/cli/test_interrupt.py). So the command
 records the key press as well as raising, and every progress report checks the record:
 an interrupt swallowed by such a callback stops the run at the next progress report.
+Raised inside a module's initialisation (a lazy import of a compiled extension), it comes
+out as another error ("ImportError: initialization failed"); the command's error boundary
+asks :func:`pressed` and reports such an error as the interrupt it is.
 """
 
 from __future__ import annotations
@@ -41,6 +44,11 @@ def recorded() -> Iterator[None]:
     finally:
         signal.signal(signal.SIGINT, previous)
         _pressed.clear()
+
+
+def pressed() -> bool:
+    """Whether Ctrl-C was pressed while :func:`recorded` was in force."""
+    return _pressed.is_set()
 
 
 def check() -> None:
