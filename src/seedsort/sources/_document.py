@@ -50,6 +50,7 @@ class TextSpool:
         self._file: BinaryIO | None = None
         self._size = 0
         self._unflushed = False
+        self._moved = False
         self._lock = threading.Lock()
 
     @property
@@ -69,7 +70,10 @@ class TextSpool:
                 self._file = tempfile.TemporaryFile(prefix="seedsort-texts-")
                 # Closed (and so removed) when the spool goes: by its last document.
                 self._closer = weakref.finalize(self, self._file.close)
-            self._file.seek(self._size)
+            if self._moved:  # a seek + read moved the position (systems without pread)
+                self._file.seek(self._size)
+                self._moved = False
+            # No seek otherwise: a seek flushes the write buffer, one system call per text.
             self._file.write(data)
             offset, self._size = self._size, self._size + len(data)
             self._unflushed = True
@@ -91,6 +95,7 @@ class TextSpool:
             with self._lock:
                 self._file.seek(offset)
                 data = self._file.read(length)
+                self._moved = True
         return data.decode("utf-8", "surrogatepass")
 
     def close(self) -> None:
