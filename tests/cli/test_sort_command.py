@@ -287,3 +287,23 @@ def test_closed_pipe_ends_quietly_with_results_written(pile: Path) -> None:
     assert stderr == ""
     with out.open(encoding="utf-8", newline="") as handle:
         assert len(list(csv.DictReader(handle))) == 409
+
+
+def test_progress_bars_show_reading_in_sizes_and_other_stages_in_counts() -> None:
+    """On a terminal the read stage counts bytes, shown as sizes; reference: rich's own
+    ``rich.filesize.decimal`` (powers of 1000, as file managers show sizes) for the sizes."""
+    import io
+
+    from rich.console import Console
+    from rich.filesize import decimal
+
+    from seedsort.cli._report import Reporter
+
+    screen = io.StringIO()
+    reporter = Reporter(err=Console(file=screen, force_terminal=True, width=120, color_system=None))
+    with reporter.progress() as update:
+        update("read", 5_000_000, 12_000_000)
+        update("graph", 3, 10)
+    shown = screen.getvalue()
+    assert f"{decimal(5_000_000)}/{decimal(12_000_000)}" in shown  # "5.0 MB/12.0 MB"
+    assert "3/10" in shown and "reading files" in shown and "neighbour graph" in shown

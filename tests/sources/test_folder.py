@@ -151,11 +151,30 @@ def test_missing_path_raises_input_error(tmp_path: Path) -> None:
     assert str(raised.value) == f"No such file or folder: {missing}. Check the path."
 
 
-def test_progress_is_reported_per_file(tmp_path: Path) -> None:
+def test_progress_is_reported_in_bytes_after_each_file(tmp_path: Path) -> None:
+    """Reference: the files' sizes as the operating system gives them (os.stat)."""
     make_corpus(tmp_path)
     calls: list[tuple[str, int, int | None]] = []
     read_collection(tmp_path, on_progress=lambda stage, done, total: calls.append((stage, done, total)))
-    assert calls == [("read", n, 10) for n in range(11)]
+    sizes = sorted(
+        (p.relative_to(tmp_path).as_posix(), p.stat().st_size)
+        for p in tmp_path.rglob("*") if p.is_file() and not any(part.startswith(".") for part in p.relative_to(tmp_path).parts)
+    )
+    total = sum(size for _, size in sizes)
+    after_each = [sum(size for _, size in sizes[: i + 1]) for i in range(len(sizes))]
+    assert calls == [("read", 0, total)] + [("read", done, total) for done in after_each]
+
+
+def test_progress_moves_within_one_long_table(tmp_path: Path) -> None:
+    """A single large table reports its position as it is parsed, not only when done."""
+    path = tmp_path / "big.csv"
+    path.write_text("id,text\n" + "".join(f"{i},ticket number {i} about a late parcel\n" for i in range(50_000)),
+                    encoding="utf-8")
+    calls: list[int] = []
+    read_collection(tmp_path, on_progress=lambda stage, done, total: calls.append(done))
+    size = path.stat().st_size
+    assert calls[0] == 0 and calls[-1] == size
+    assert len(calls) >= 4 and calls == sorted(calls) and all(0 < c < size for c in calls[1:-2])
 
 
 def test_an_empty_folder_gives_an_empty_collection(tmp_path: Path) -> None:

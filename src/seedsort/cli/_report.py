@@ -15,10 +15,13 @@ from pathlib import Path
 
 from rich import box
 from rich.console import Console
+from rich.filesize import decimal
 from rich.progress import (
     BarColumn,
     MofNCompleteColumn,
     Progress,
+    ProgressColumn,
+    Task,
     TextColumn,
     TimeElapsedColumn,
     TimeRemainingColumn,
@@ -51,6 +54,22 @@ STAGE_NAMES = {
     "nearest seeds": "nearest examples",
 }
 BAR_CELLS = 10
+#: Stages whose progress counts bytes (shown as sizes), not items.
+BYTE_STAGES = frozenset({"read"})
+
+
+class _DoneOfTotal(ProgressColumn):
+    """``done/total`` of a stage: items as numbers, bytes as sizes (``12.3/45.6 MB``)."""
+
+    def __init__(self) -> None:
+        super().__init__()
+        self._items = MofNCompleteColumn()
+
+    def render(self, task: Task) -> Text:
+        if not task.fields.get("in_bytes"):
+            return self._items.render(task)
+        total = "?" if task.total is None else decimal(int(task.total))
+        return Text(f"{decimal(int(task.completed))}/{total}", style="progress.download")
 
 
 def _raise_broken_pipe() -> None:
@@ -80,7 +99,7 @@ class Reporter:
             yield lambda stage, done, total: check_interrupt()
             return
         bars = Progress(
-            TextColumn("{task.description:<18}"), BarColumn(), MofNCompleteColumn(),
+            TextColumn("{task.description:<18}"), BarColumn(), _DoneOfTotal(),
             TimeElapsedColumn(), TextColumn("eta"), TimeRemainingColumn(),
             console=self.err, transient=True,
         )
@@ -89,7 +108,7 @@ class Reporter:
         def update(stage: str, done: int, total: int | None) -> None:
             check_interrupt()
             if stage not in tasks:
-                tasks[stage] = bars.add_task(STAGE_NAMES.get(stage, stage), total=total)
+                tasks[stage] = bars.add_task(STAGE_NAMES.get(stage, stage), total=total, in_bytes=stage in BYTE_STAGES)
             bars.update(tasks[stage], completed=done, total=total)
 
         with bars:

@@ -2,9 +2,16 @@
 
 from __future__ import annotations
 
+from collections.abc import Callable, Iterable, Iterator
 from dataclasses import dataclass, field
+from typing import TypeVar
 
 from ._document import Document, TextSpool
+
+T = TypeVar("T")
+
+#: Lines of a streamed file between two progress reports (a few milliseconds of parsing).
+LINES_PER_REPORT = 10_000
 
 
 @dataclass(frozen=True, slots=True)
@@ -88,6 +95,19 @@ class FileReading:
     skipped: list[SkippedFile] = field(default_factory=list)
     notes: list[str] = field(default_factory=list)
     spool: TextSpool | None = None
+    #: Called with the bytes of the file read so far, now and then, by streaming readers.
+    on_position: Callable[[int], None] | None = None
+
+    def metered(self, lines: Iterable[T], position: Callable[[], int]) -> Iterator[T]:
+        """``lines`` as they are, reporting ``position()`` (bytes read) every
+        :data:`LINES_PER_REPORT` lines: progress through one long table or mailbox."""
+        if self.on_position is None:
+            yield from lines
+            return
+        for number, line in enumerate(lines, start=1):
+            if number % LINES_PER_REPORT == 0:
+                self.on_position(position())
+            yield line
 
     def add(self, id: str, source: str, text: str, label: str | None = None) -> None:
         """Append a document made from ``text`` (hashed, then kept by the spool)."""

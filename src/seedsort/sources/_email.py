@@ -295,7 +295,7 @@ def read_mbox(path: Path, rel: str, columns: TableColumns, reading: FileReading)
     broken: list[tuple[int, str]] = []
     total = 0
     with open(path, "rb") as handle:
-        for total, raw in enumerate(split_mbox(handle), start=1):
+        for total, raw in enumerate(split_mbox(reading.metered(handle, handle.tell)), start=1):
             try:
                 text = text_of_message_bytes(raw)
             except BrokenMessageError as exc:

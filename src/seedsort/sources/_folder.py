@@ -91,11 +91,25 @@ def list_files(root: Path) -> tuple[list[tuple[str, Path]], list[SkippedFile]]:
     return found, unlisted
 
 
-def read_file(path: Path, rel: str, columns: TableColumns, spool: TextSpool | None = None) -> FileReading:
+def _size(path: Path) -> int:
+    try:
+        return path.stat().st_size if path.is_file() else 0
+    except OSError:
+        return 0
+
+
+def read_file(
+    path: Path,
+    rel: str,
+    columns: TableColumns,
+    spool: TextSpool | None = None,
+    on_position: Callable[[int], None] | None = None,
+) -> FileReading:
     """Read one file with the reader for its extension; problems become skipped entries.
 
     ``spool`` keeps the documents' texts (None: in memory). A file that fails part way
-    (unreadable, undecodable) gives no documents, only its skipped entry.
+    (unreadable, undecodable) gives no documents, only its skipped entry. ``on_position``
+    hears the bytes read so far from a streamed table or mailbox, now and then.
 
     Raises
     ------
@@ -109,7 +123,7 @@ def read_file(path: Path, rel: str, columns: TableColumns, spool: TextSpool | No
         return FileReading(skipped=[SkippedFile(rel, f"unsupported file type {what}")])
     if not path.is_file():  # a FIFO would block forever, a device would never end
         return FileReading(skipped=[SkippedFile(rel, "not a regular file")])
-    reading = FileReading(spool=spool)
+    reading = FileReading(spool=spool, on_position=on_position)
     try:
         with open(path, "rb") as handle:
             head = handle.read(BINARY_SNIFF_BYTES)
@@ -139,7 +153,10 @@ def read_collection(
     columns:
         Which table columns hold the text, ids and labels; ``None`` fields are guessed.
     on_progress:
-        Called as ``on_progress("read", files_done, files_total)``, first with 0 done.
+        Called as ``on_progress("read", bytes_done, bytes_total)`` over the sizes of the
+        files listed: first with 0 done, after each file, and every
+        :data:`~seedsort.sources._collection.LINES_PER_REPORT` lines within a streamed
+        table or mailbox.
     held_text_bytes:
         Texts kept in memory (characters) before the rest go to a temporary file
         (:class:`~seedsort.sources._document.TextSpool`; None: its default budget); reading
@@ -170,13 +187,19 @@ def read_collection(
     documents: list[Document] = []
     notes: list[str] = []
     spool = TextSpool(held_text_bytes)
-    report(PROGRESS_STAGE, 0, len(files))
-    for done, (rel, file_path) in enumerate(files, start=1):
-        reading = read_file(file_path, rel, columns, spool)
+    sizes = [_size(file_path) for _, file_path in files]
+    total, done = sum(sizes), 0
+    report(PROGRESS_STAGE, 0, total)
+    for (rel, file_path), size in zip(files, sizes):
+        def within(position: int, before: int = done, size: int = size) -> None:
+            report(PROGRESS_STAGE, before + min(position, size), total)
+
+        reading = read_file(file_path, rel, columns, spool, on_position=within)
         documents.extend(reading.documents)
         skipped.extend(reading.skipped)
         notes.extend(reading.notes)
-        report(PROGRESS_STAGE, done, len(files))
+        done += size
+        report(PROGRESS_STAGE, done, total)
     return Collection(
         root=str(root), documents=tuple(documents), skipped=tuple(skipped), notes=tuple(notes),
         spooled_bytes=spool.spooled_bytes,

@@ -209,7 +209,7 @@ def _read_delimited(
         with open_decoded(path, encoding) as handle:
             delimiter = _sniff_delimiter(handle.read(_SNIFF_CHARS + 1))
     with open_decoded(path, encoding) as handle:
-        _parse_delimited(handle, rel, delimiter, columns, reading)
+        _parse_delimited(reading.metered(handle, handle.buffer.tell), rel, delimiter, columns, reading)
 
 
 def _parse_delimited(
@@ -283,7 +283,7 @@ def read_jsonl(path: Path, rel: str, columns: TableColumns, reading: FileReading
     encoding = file_encoding(path)
     note_encoding(encoding, rel, reading)
     with open_decoded(path, encoding) as handle:
-        _parse_jsonl(handle, rel, columns, reading)
+        _parse_jsonl(reading.metered(handle, handle.buffer.tell), rel, columns, reading)
 
 
 def _parse_jsonl(lines: Iterable[str], rel: str, columns: TableColumns, reading: FileReading) -> None:
