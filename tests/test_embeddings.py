@@ -109,6 +109,16 @@ def test_mean_pool_ignores_masked_tokens_and_normalises() -> None:
     assert not pooled[2].any()  # nothing unmasked -> zero row, no NaN
 
 
+def test_content_mask_drops_each_rows_first_and_last_token() -> None:
+    """Hand-worked: rows of 5, 3 and 2 tokens ([CLS] + [SEP] only), padding after them."""
+    mask = np.array([[1, 1, 1, 1, 1], [1, 1, 1, 0, 0], [1, 1, 0, 0, 0], [0, 0, 0, 0, 0]])
+    np.testing.assert_array_equal(
+        embeddings.content_mask(mask),
+        [[0, 1, 1, 1, 0], [0, 1, 0, 0, 0], [0, 0, 0, 0, 0], [0, 0, 0, 0, 0]],
+    )
+    np.testing.assert_array_equal(mask[0], [1, 1, 1, 1, 1])  # the input is left as it was
+
+
 @settings(max_examples=30, deadline=None)
 @given(
     hidden=arrays(np.float32, (2, 4, 384), elements=st.floats(-4, 4, width=32)),
@@ -238,7 +248,8 @@ def test_cache_lookup_returns_what_was_added(tmp_path_factory, keys, probe) -> N
 
 
 def test_embeddings_match_sentence_transformers_fp32(extra) -> None:
-    got = embeddings.embed_texts(SENTENCES)
+    """sentence-transformers pools over every token ([CLS] and [SEP] too): pooling="mean"."""
+    got = embeddings.embed_texts(SENTENCES, pooling="mean")
     reference = np.asarray(REFERENCE_FP32, dtype=np.float64)
     reference /= np.linalg.norm(reference, axis=1, keepdims=True)
     cosines = (got * reference).sum(axis=1)
@@ -249,8 +260,40 @@ def test_embeddings_match_sentence_transformers_fp32(extra) -> None:
 def test_embeddings_match_the_same_int8_model_run_one_text_at_a_time(extra) -> None:
     reference = np.asarray(REFERENCE_INT8)
     for batch_size in (1, 2, 64):
-        got = embeddings.embed_texts(SENTENCES, batch_size=batch_size)
+        got = embeddings.embed_texts(SENTENCES, batch_size=batch_size, pooling="mean")
         np.testing.assert_allclose(got, reference, atol=1e-3)
+
+
+def test_default_pooling_is_the_mean_of_the_texts_own_tokens(extra) -> None:
+    """Reference: the model run by onnxruntime directly on each sentence alone (no padding,
+    no batching), its token ids from the tokenizers library's own ``encode``, pooled by a
+    plain ``hidden[1:-1].mean(axis=0)`` (every token but the first, [CLS], and the last,
+    [SEP]) and divided by its norm: a route sharing no batching, masking or pooling code
+    with seedsort. The model outputs themselves are checked against sentence-transformers
+    above (pooling="mean")."""
+    import importlib.resources
+
+    import onnxruntime
+    from tokenizers import Tokenizer
+
+    with importlib.resources.as_file(importlib.resources.files("seedsort.embeddings") / "data/tokenizer.json") as path:
+        tokenizer = Tokenizer.from_file(str(path))
+    tokenizer.no_padding()  # the shipped file pads to 128 tokens
+    tokenizer.enable_truncation(max_length=embeddings.MAX_TOKENS)
+    session = onnxruntime.InferenceSession(str(embeddings.model_path()), providers=["CPUExecutionProvider"])
+    names = {i.name for i in session.get_inputs()}
+    expected = []
+    for sentence in SENTENCES:
+        ids = np.asarray([tokenizer.encode(sentence).ids], dtype=np.int64)
+        feeds = {"input_ids": ids, "attention_mask": np.ones_like(ids), "token_type_ids": np.zeros_like(ids)}
+        hidden = session.run(None, {k: v for k, v in feeds.items() if k in names})[0][0]
+        pooled = hidden[1:-1].mean(axis=0)
+        expected.append(pooled / np.linalg.norm(pooled))
+    assert embeddings.POOLING == "content"
+    for batch_size in (1, 3):
+        np.testing.assert_allclose(embeddings.embed_texts(SENTENCES, batch_size=batch_size), expected, atol=1e-4)
+    with pytest.raises(ValueError, match="pooling"):
+        embeddings.embed_texts(SENTENCES, pooling="max")
 
 
 def test_paraphrases_are_closer_than_unrelated_texts(extra) -> None:

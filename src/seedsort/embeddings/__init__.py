@@ -7,8 +7,8 @@ sha256 is checked before loading; nothing is fetched from any hub. The matching 
 
 Algorithm: WordPiece tokens cut at 256 (the model's training length) -> texts sorted by
 token count and cut into batches, each padded only to its longest text -> one onnxruntime
-session using every core -> mean of the token vectors over the attention mask -> L2
-normalisation (numpy). Rows are unit vectors, so a cosine is a dot product; an empty text
+session using every core -> mean of the text's own token vectors ([CLS] and [SEP] left
+out: :data:`POOLING`) -> L2 normalisation (numpy). Rows are unit vectors, so a cosine is a dot product; an empty text
 gives a zero row. Cost: O(total tokens x layers) plus the attention's O(tokens^2) per text;
 about 250 short sentences (BANKING77 queries, ~11 words) per second in batches of 32 on a
 2-core x86-64 machine (benchmarks/embedding_speed.py; 110-170 while the cores were shared),
@@ -30,6 +30,8 @@ from ._encoder import (
     MAX_TOKENS,
     MODEL_DISTRIBUTION,
     MODEL_SHA256,
+    POOLING,
+    content_mask,
     embed_texts,
     mean_pool_normalise,
     model_path,
@@ -42,7 +44,9 @@ __all__ = [
     "MAX_TOKENS",
     "MODEL_DISTRIBUTION",
     "MODEL_SHA256",
+    "POOLING",
     "EmbeddingCache",
+    "content_mask",
     "embed_texts",
     "embed_with_cache",
     "mean_pool_normalise",

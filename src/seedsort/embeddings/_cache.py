@@ -23,7 +23,8 @@ from ..errors import SeedsortWarning
 from ..sources import content_hash
 from ._encoder import DIMENSION, MAX_TOKENS, MODEL_SHA256, embed_texts
 
-_FORMAT = 1
+#: 2: vectors pool the text's own tokens (_encoder.POOLING); a format-1 file is rebuilt.
+_FORMAT = 2
 _HASH_DTYPE = "S64"  # sha256 hex, ASCII
 
 
