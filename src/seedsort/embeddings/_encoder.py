@@ -39,8 +39,8 @@ _MODEL_TOKEN_LIMIT = 512
 #: on BANKING77 at 10 seeds per category than the all-token mean sentence-transformers uses
 #: ("mean"): 89.29% against 88.99% on sampling seeds 100-104, where it was chosen among
 #: other poolings (max, [CLS], weighted means); then 89.16% against 88.81% on the
-#: benchmark's samples 0-4, 89.45% against 89.12% on 5-9 and 89.11% against 88.66% on 10-14
-#: (see the README's Embedding mode for the benchmark command). The two special tokens sit
+#: benchmark's samples 0-4 and 89.47% against 89.12% on 5-9 (benchmarks/embedding_accuracy.py;
+#: the README's Embedding mode gives the commands). The two special tokens sit
 #: in every text and pull all vectors toward one shared direction.
 POOLING = "content"
 POOLINGS = ("content", "mean")
