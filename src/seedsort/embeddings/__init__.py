@@ -10,9 +10,9 @@ token count and cut into batches, each padded only to its longest text -> one on
 session using every core -> mean of the text's own token vectors ([CLS] and [SEP] left
 out: :data:`POOLING`) -> L2 normalisation (numpy). Rows are unit vectors, so a cosine is a dot product; an empty text
 gives a zero row. Cost: O(total tokens x layers) plus the attention's O(tokens^2) per text;
-about 250 short sentences (BANKING77 queries, ~11 words) per second in batches of 32 on a
-2-core x86-64 machine (benchmarks/embedding_speed.py; 110-170 while the cores were shared),
-some 17-40x slower than n-gram TF-IDF.
+about 400 short sentences (BANKING77 queries, ~11 words) per second in batches of 32 on an
+idle 2-core x86-64 machine (benchmarks/embedding_speed.py; 110-250 while the cores were
+shared), some 17-45x slower than n-gram TF-IDF.
 
 :class:`EmbeddingCache` and :func:`embed_with_cache` keep vectors per document content hash
 in a ``.npz`` file, so a re-run embeds only new or edited documents.
