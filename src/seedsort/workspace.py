@@ -285,28 +285,28 @@ class Workspace:
         """
         known = dict(self._db.execute("SELECT id, content_hash FROM documents"))
         now = _now()
-        # Positions first, rows when written: the texts are read (from the documents' spool)
+        # Documents first, rows when written: the texts are read (from the documents' spool)
         # as executemany takes each row, never all held.
-        new: list[int] = []
-        changed: list[int] = []
+        new: list[tuple[int, Document]] = []
+        changed: list[tuple[int, Document]] = []
         moved: list[tuple[object, ...]] = []
         for position, doc in enumerate(documents):
             stored = known.pop(doc.id, None)
             if stored is None:
-                new.append(position)
+                new.append((position, doc))
             elif stored != doc.content_hash:
-                changed.append(position)
+                changed.append((position, doc))
             else:
                 moved.append((position, doc.source, doc.id))
         with self._transaction() as db:
             db.executemany(
                 "INSERT INTO documents(id, source, content_hash, text, position, present, first_seen) "
                 "VALUES (?, ?, ?, ?, ?, 1, ?)",
-                ((d.id, d.source, d.content_hash, d.text, p, now) for p, d in ((p, documents[p]) for p in new)),
+                ((d.id, d.source, d.content_hash, d.text, p, now) for p, d in new),
             )
             db.executemany(
                 "UPDATE documents SET source=?, content_hash=?, text=?, position=?, present=1, changed_at=? WHERE id=?",
-                ((d.source, d.content_hash, d.text, p, now, d.id) for p, d in ((p, documents[p]) for p in changed)),
+                ((d.source, d.content_hash, d.text, p, now, d.id) for p, d in changed),
             )
             db.executemany("UPDATE documents SET position=?, source=?, present=1 WHERE id=?", moved)
             db.executemany("UPDATE documents SET present=0 WHERE id=?", [(gone,) for gone in known])

@@ -65,6 +65,27 @@ def normalise_newlines(text: str) -> str:
     return text.replace("\r\n", "\n").replace("\r", "\n")
 
 
+@dataclass(frozen=True, slots=True)
+class FileEncoding:
+    """How to decode a file: the codec, after skipping ``skip`` bytes (a stray UTF-8 mark)."""
+
+    codec: str
+    skip: int = 0
+
+
+_UNDECODABLE = "could not decode as UTF-8, UTF-16 or cp1252"
+
+
+def _candidates(head: bytes) -> tuple[FileEncoding, ...]:
+    """The encodings to try, in the order of trust, for bytes that start with ``head``."""
+    if head.startswith(codecs.BOM_UTF8):
+        # A UTF-8 mark on a file edited later in a legacy editor: cp1252 after the mark.
+        return (FileEncoding(UTF8_SIG), FileEncoding(CP1252, len(codecs.BOM_UTF8)))
+    if has_utf16_bom(head):
+        return (FileEncoding(UTF16),)
+    return (FileEncoding(UTF8), FileEncoding(CP1252))
+
+
 def decode_bytes(data: bytes) -> tuple[str, str]:
     """Decode ``data`` as text, newlines normalised to ``\\n``.
 
@@ -85,27 +106,12 @@ def decode_bytes(data: bytes) -> tuple[str, str]:
         If no accepted encoding decodes the bytes. Binary detection is separate
         (``looks_binary``) because message parts may legitimately hold NUL bytes.
     """
-    if data.startswith(codecs.BOM_UTF8):
+    for candidate in _candidates(data):
         try:
-            return normalise_newlines(data.decode(UTF8_SIG)), UTF8_SIG
+            return normalise_newlines(data[candidate.skip :].decode(candidate.codec)), candidate.codec
         except UnicodeDecodeError:
-            # A UTF-8 mark on a file edited later in a legacy editor: fall through
-            # to cp1252 for the bytes after the mark.
-            data = data[len(codecs.BOM_UTF8) :]
-    elif has_utf16_bom(data):
-        try:
-            return normalise_newlines(data.decode(UTF16)), UTF16
-        except UnicodeDecodeError:
-            raise UndecodableError("could not decode as UTF-8, UTF-16 or cp1252") from None
-    else:
-        try:
-            return normalise_newlines(data.decode(UTF8)), UTF8
-        except UnicodeDecodeError:
-            pass
-    try:
-        return normalise_newlines(data.decode(CP1252)), CP1252
-    except UnicodeDecodeError:
-        raise UndecodableError("could not decode as UTF-8, UTF-16 or cp1252") from None
+            continue
+    raise UndecodableError(_UNDECODABLE)
 
 
 def clean_text(text: str) -> str:
@@ -136,17 +142,8 @@ def decode_file_text(data: bytes, rel: str, reading: FileReading) -> str:
         As ``decode_bytes``.
     """
     text, encoding = decode_bytes(data)
-    if encoding in LEGACY_ENCODINGS:
-        reading.notes.append(legacy_note(rel, encoding))
+    note_encoding(encoding, rel, reading)
     return text
-
-
-@dataclass(frozen=True, slots=True)
-class FileEncoding:
-    """How to decode a file: the codec, after skipping ``skip`` bytes (a stray UTF-8 mark)."""
-
-    codec: str
-    skip: int = 0
 
 
 def _decodes(path: Path, encoding: FileEncoding) -> bool:
@@ -176,17 +173,10 @@ def file_encoding(path: Path) -> FileEncoding:
     """
     with open(path, "rb") as handle:
         head = handle.read(4)
-    if head.startswith(codecs.BOM_UTF8):
-        # A UTF-8 mark on a file edited later in a legacy editor: cp1252 after the mark.
-        candidates = (FileEncoding(UTF8_SIG), FileEncoding(CP1252, len(codecs.BOM_UTF8)))
-    elif has_utf16_bom(head):
-        candidates = (FileEncoding(UTF16),)
-    else:
-        candidates = (FileEncoding(UTF8), FileEncoding(CP1252))
-    for candidate in candidates:
+    for candidate in _candidates(head):
         if _decodes(path, candidate):
             return candidate
-    raise UndecodableError("could not decode as UTF-8, UTF-16 or cp1252")
+    raise UndecodableError(_UNDECODABLE)
 
 
 def open_decoded(path: Path, encoding: FileEncoding) -> TextIO:
@@ -197,7 +187,7 @@ def open_decoded(path: Path, encoding: FileEncoding) -> TextIO:
     return io.TextIOWrapper(handle, encoding=encoding.codec, newline=None)
 
 
-def note_encoding(encoding: FileEncoding, rel: str, reading: FileReading) -> None:
-    """Add the legacy 8-bit note to ``reading`` when ``encoding`` was a guess."""
-    if encoding.codec in LEGACY_ENCODINGS:
-        reading.notes.append(legacy_note(rel, encoding.codec))
+def note_encoding(codec: str, rel: str, reading: FileReading) -> None:
+    """Add the legacy 8-bit note to ``reading`` when ``codec`` was a guess."""
+    if codec in LEGACY_ENCODINGS:
+        reading.notes.append(legacy_note(rel, codec))

@@ -69,7 +69,7 @@ class TextSpool:
             if self._file is None:
                 self._file = tempfile.TemporaryFile(prefix="seedsort-texts-")
                 # Closed (and so removed) when the spool goes: by its last document.
-                self._closer = weakref.finalize(self, self._file.close)
+                weakref.finalize(self, self._file.close)
             if self._moved:  # a seek + read moved the position (systems without pread)
                 self._file.seek(self._size)
                 self._moved = False
@@ -97,11 +97,6 @@ class TextSpool:
                 data = self._file.read(length)
                 self._moved = True
         return data.decode("utf-8", "surrogatepass")
-
-    def close(self) -> None:
-        """Remove the temporary file now; spooled texts can no longer be read."""
-        if self._file is not None:
-            self._closer()
 
 
 class Document:

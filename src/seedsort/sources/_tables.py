@@ -204,7 +204,7 @@ def _read_delimited(
     path: Path, rel: str, delimiter: str | None, columns: TableColumns, reading: FileReading
 ) -> None:
     encoding = file_encoding(path)
-    note_encoding(encoding, rel, reading)
+    note_encoding(encoding.codec, rel, reading)
     if delimiter is None:
         with open_decoded(path, encoding) as handle:
             delimiter = _sniff_delimiter(handle.read(_SNIFF_CHARS + 1))
@@ -281,7 +281,7 @@ def read_jsonl(path: Path, rel: str, columns: TableColumns, reading: FileReading
     the first ``GUESS_ROWS`` objects, so a named column must appear in one of those.
     """
     encoding = file_encoding(path)
-    note_encoding(encoding, rel, reading)
+    note_encoding(encoding.codec, rel, reading)
     with open_decoded(path, encoding) as handle:
         _parse_jsonl(reading.metered(handle, handle.buffer.tell), rel, columns, reading)
 
