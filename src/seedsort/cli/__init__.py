@@ -18,6 +18,7 @@ from typing import TYPE_CHECKING
 
 from ..errors import SeedsortError, SeedsortWarning
 from ..review import REVIEW_ORDERS
+from . import _interrupt
 
 if TYPE_CHECKING:
     from ..sorting import SortSettings
@@ -403,8 +404,6 @@ _WRITTEN: list[Path] = []
 
 def main(argv: Sequence[str] | None = None) -> int:
     """Entry point of the ``seedsort`` command; returns the exit code."""
-    from . import _interrupt
-
     try:
         with _interrupt.recorded():
             return _main(argv)
@@ -414,8 +413,6 @@ def main(argv: Sequence[str] | None = None) -> int:
 
 
 def _main(argv: Sequence[str] | None) -> int:
-    from . import _interrupt
-
     _WRITTEN.clear()
     parser = build_parser()
     args = parser.parse_args(argv)

