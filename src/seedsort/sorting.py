@@ -555,7 +555,15 @@ def gather(
         notes.extend(example_docs.notes)
     seed_file = read_labels_file(seeds_file) if seeds_file is not None else []
     if not documents:
-        raise InputError(f"No readable documents in {path}; seedsort reads .txt .md .html .eml .mbox .csv .tsv .jsonl files.")
+        # Say why the files found gave nothing (an undecodable export, a binary file), not
+        # only which kinds of file are read.
+        why = ""
+        if skipped:
+            more = f", and {len(skipped) - 1} more skipped" if len(skipped) > 1 else ""
+            why = f" (skipped {skipped[0].path}: {skipped[0].reason}{more})"
+        raise InputError(
+            f"No readable documents in {path}{why}; seedsort reads .txt .md .html .eml .mbox .csv .tsv .jsonl files."
+        )
     merged = Collection(root=collection.root, documents=tuple(documents), skipped=tuple(skipped), notes=tuple(notes),
                         spooled_bytes=collection.spooled_bytes)
     return Gathered(merged, label_column, examples, seed_file)

@@ -307,3 +307,21 @@ def test_progress_bars_show_reading_in_sizes_and_other_stages_in_counts() -> Non
     shown = screen.getvalue()
     assert f"{decimal(5_000_000)}/{decimal(12_000_000)}" in shown  # "5.0 MB/12.0 MB"
     assert "3/10" in shown and "reading files" in shown and "neighbour graph" in shown
+
+
+def test_a_folder_whose_only_file_cannot_be_decoded_says_which_file_and_why(
+    tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
+    """0x81 is one of the five bytes cp1252 leaves undefined (the codec's own table), so the
+    export decodes in no accepted encoding: one line naming the file and the reason, exit 1,
+    the file left as it was."""
+    folder = tmp_path / "pile"
+    folder.mkdir()
+    export = folder / "export.csv"
+    data = b"id,text,label\n1,ok,a\n2,\xff\x81,b\n"
+    export.write_bytes(data)
+    code, _, stderr = run(["sort", str(folder), "--label-column", "label", "--out", str(tmp_path / "r.csv")], capsys)
+    assert code == 1
+    assert stderr.count("\n") == 1
+    assert "skipped export.csv: could not decode as UTF-8, UTF-16 or cp1252" in stderr
+    assert export.read_bytes() == data and not (tmp_path / "r.csv").exists()
